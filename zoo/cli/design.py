@@ -1,0 +1,3 @@
+"""Commands of zoo: design (filled in by its owner)."""
+
+from zoo.cli.app import app  # noqa: F401
