@@ -32,7 +32,11 @@ def _extended_gcd(a: int, b: int) -> tuple[int, int, int]:
 
 
 def area(p: ParameterSet) -> int:
-    """A = det [[alpha, gamma], [-beta, delta]] = alpha*delta + beta*gamma = |T| (theory.md §2.1)."""
+    """A = det [[alpha, gamma], [-beta, delta]] = alpha*delta + beta*gamma = |T| (theory.md §2.1).
+
+    >>> area(ParameterSet(4, 2, 2, 3))
+    16
+    """
     return p.area
 
 
@@ -84,19 +88,75 @@ def representative(p: ParameterSet, x: Point) -> Point:
 
 
 def parallelogram_points(p: ParameterSet) -> list[Point]:
-    """All A points of the half-open fundamental parallelogram, sorted (theory.md §2.3)."""
-    a = p.area
-    lo_xi = -p.gamma  # the parallelogram's vertices are O, P, P+R, R
-    hi_xi = p.alpha + p.gamma
-    lo_eta = -p.beta
-    hi_eta = p.delta
-    points = [
-        (xi, eta)
-        for xi in range(min(0, lo_xi), hi_xi + 1)
-        for eta in range(lo_eta, hi_eta + 1)
-        if 0 <= p.delta * xi - p.gamma * eta < a and 0 <= p.beta * xi + p.alpha * eta < a
-    ]
-    return sorted(points)
+    """All A points of the half-open fundamental parallelogram, sorted (theory.md §2.3).
+
+    For each column xi the two strip conditions bound eta to an interval, so the work is
+    proportional to A, not to the bounding box of the parallelogram (which can be far larger,
+    e.g. for C(1000,1000,1,1)).
+
+    >>> parallelogram_points(ParameterSet(2, 1, 1, 1))
+    [(0, 0), (1, 0), (2, 0)]
+    """
+    a, b, c, d = p.as_tuple()
+    area = p.area
+    points: list[Point] = []
+    # The vertices are O, P = (a, -b), P + R = (a + c, d - b) and R = (c, d): 0 <= xi <= a + c.
+    for xi in range(0, a + c + 1):
+        # 0 <= d*xi - c*eta < A  <=>  (d*xi - A)/c < eta <= d*xi/c
+        hi1 = (d * xi) // c
+        lo1 = (d * xi - area) // c + 1
+        # 0 <= b*xi + a*eta < A  <=>  -b*xi/a <= eta < (A - b*xi)/a
+        lo2 = -((b * xi) // a)
+        hi2 = -((b * xi - area) // a) - 1
+        points.extend((xi, eta) for eta in range(max(lo1, lo2), min(hi1, hi2) + 1))
+    return points
+
+
+def level(p: ParameterSet, x: Point) -> int:
+    """The level L(xi, eta) = beta*xi + alpha*eta of a Petri-space point (theory.md §3.1).
+
+    L(P) = 0 and L(R) = A, so levels of nodes of the cycloid are defined modulo A; the initial
+    marking cuts the Petri space between level 0 and level 1.
+    """
+    return p.beta * x[0] + p.alpha * x[1]
+
+
+def points_at_level(p: ParameterSet, value: int) -> list[Point]:
+    """The representatives t with L(t) = value, for 0 <= value < A, sorted (theory.md §3.1).
+
+    With e = gcd(alpha, beta) there are e of them when e divides the value and none otherwise:
+    the solutions of beta*xi + alpha*eta = value step by (alpha/e, -beta/e), which moves
+    delta*xi - gamma*eta by A/e, so exactly e of them lie in the strip [0, A). [Derived; checked
+    against a scan of the parallelogram in tests.]
+    """
+    a, b, c, d = p.as_tuple()
+    area = p.area
+    if not 0 <= value < area:
+        raise ValueError(f"level must lie in 0..A-1 = 0..{area - 1}, got {value}")
+    e, x, y = _extended_gcd(b, a)  # b*x + a*y = e
+    if value % e:
+        return []
+    xi0, eta0 = x * (value // e), y * (value // e)
+    step_xi, step_eta, step_d = a // e, -(b // e), area // e
+    d0 = d * xi0 - c * eta0
+    k0 = -(d0 // step_d)  # the smallest k with d0 + k*step_d >= 0
+    found = [(xi0 + k * step_xi, eta0 + k * step_eta) for k in range(k0, k0 + e)]
+    return sorted(found)
+
+
+def is_sublattice(fine: ParameterSet, coarse: ParameterSet) -> bool:
+    """Whether L(fine) is contained in L(coarse), i.e. the equivalence of C(fine) refines that of
+    C(coarse) and C(fine) covers C(coarse) (theory.md §8).
+
+    L' is contained in L iff both generators of L' pass the integer test of L.
+
+    >>> is_sublattice(ParameterSet(4, 2, 4, 6), ParameterSet(4, 2, 2, 3))
+    True
+    """
+    origin = (0, 0)
+    return are_equivalent(coarse, origin, (fine.alpha, -fine.beta)) and are_equivalent(
+        coarse, origin, (fine.gamma, fine.delta)
+    )
 
 
 @dataclass(frozen=True, order=True)
@@ -148,7 +208,11 @@ def lattice_key(p: ParameterSet) -> LatticeKey:
 
 
 def swap(p: ParameterSet) -> ParameterSet:
-    """C(beta, alpha, delta, gamma), isomorphic to C(p) by (xi, eta) -> (eta, xi) (theory.md §5.1)."""
+    """C(beta, alpha, delta, gamma), isomorphic to C(p) by (xi, eta) -> (eta, xi) (theory.md §5.1).
+
+    The mirror exchanges forward and backward places and maps M0 onto the initial marking of
+    the swapped cycloid, so both are the same class (design.md §1) but different readings.
+    """
     return p.swap()
 
 
@@ -223,7 +287,9 @@ def _exceptional_lattices(a: int) -> tuple[LatticeKey, LatticeKey] | None:
     if a % 4 or a < 8:
         return None
     k = a // 4
-    return (lattice_key(ParameterSet(2, 2, 1, 2 * k - 1)), lattice_key(ParameterSet(2, 2, 2, 2 * k - 2)))
+    odd = lattice_key(ParameterSet(2, 2, 1, 2 * k - 1))
+    even = lattice_key(ParameterSet(2, 2, 2, 2 * k - 2))
+    return (odd, even)
 
 
 def class_key(p: ParameterSet) -> ReadingKey:
@@ -231,22 +297,71 @@ def class_key(p: ParameterSet) -> ReadingKey:
 
     Minimum of the reading keys of p and its swap, merged along the exceptional family
     C(2,2,1,2k-1) ~ C(2,2,2,2k-2) (theory.md §5.1, verified with nauty for A <= 60 there and
-    for every catalog build here).
+    in tests/test_algebra.py). With alpha = beta = 2 and A = 4k the parameter sets are the
+    C(2,2,gamma,2k-gamma); delta-steps make every odd gamma one reading and every even gamma
+    another, and the exception joins the two, so all of them are one class.
+
+    >>> class_key(ParameterSet(4, 2, 2, 3)) == class_key(ParameterSet(2, 4, 3, 2))
+    True
     """
-    key = min(reading_key(p), reading_key(p.swap()))
     if p.alpha == 2 and p.beta == 2:
         pair = _exceptional_lattices(p.area)
         if pair is not None:
-            first = pair[0]
-            return (first.area, first.g, first.r, 2, 2)
-    return key
+            odd = pair[0]
+            return (odd.area, odd.g, odd.r, 2, 2)
+    return min(reading_key(p), reading_key(p.swap()))
 
 
 def frame_key(p: ParameterSet) -> LatticeKey:
-    """The algebraic frame key: isomorphic unmarked nets (design.md §1, theory.md §5.1)."""
+    """The algebraic frame key: isomorphic unmarked nets (design.md §1, theory.md §5.1).
+
+    The smaller lattice key of p and of its swap; at A = 4k the frames of C(2,2,2,2k-2) and of
+    C(2,2,1,2k-1) are merged (the exceptional family), onto the latter's key.
+
+    >>> frame_key(ParameterSet(1, 5, 1, 3)) == frame_key(ParameterSet(2, 2, 2, 2))
+    True
+    """
     key = min(lattice_key(p), lattice_key(p.swap()))
     pair = _exceptional_lattices(p.area)
-    if pair is not None and key == min(pair[1], lattice_key(ParameterSet(2, 2, p.area // 2 - 2, 2))):
-        first = pair[0]
-        return min(first, lattice_key(ParameterSet(2, 2, p.area // 2 - 1, 1)))
+    if pair is not None:
+        k = p.area // 4
+        even_frame = min(pair[1], lattice_key(ParameterSet(2, 2, 2 * k - 2, 2)))
+        if key == even_frame:
+            return min(pair[0], lattice_key(ParameterSet(2, 2, 2 * k - 1, 1)))
     return key
+
+
+def class_reading_representatives(p: ParameterSet) -> list[ParameterSet]:
+    """One parameter set of every reading in the class of p, sorted (design.md §1).
+
+    A class holds the reading of p and that of its swap, except in the exceptional family of
+    theory.md §5.1, where C(2,2,1,2k-1) and C(2,2,2,2k-2) (and their swaps) are one class.
+    """
+    members = {p, p.swap()}
+    if p.alpha == 2 and p.beta == 2 and _exceptional_lattices(p.area) is not None:
+        k = p.area // 4
+        members |= {ParameterSet(2, 2, 1, 2 * k - 1), ParameterSet(2, 2, 2, 2 * k - 2)}
+    by_reading = {reading_key(q): q for q in sorted(members, reverse=True)}
+    return sorted(by_reading.values())
+
+
+def class_iteration_depth(p: ParameterSet) -> int:
+    """The largest n such that the *class* of p is an n-fold iteration: the maximum of
+    ``iteration_depth`` over its readings (theory.md §8 with the classes of design.md §1).
+
+    It differs from ``iteration_depth(p)`` only in the exceptional family: C(2,2,1,3) is no
+    iteration as a parameter set, but it is isomorphic to C(2,2,2,2) = iterate(C(2,2,1,1), 2).
+
+    >>> iteration_depth(ParameterSet(2, 2, 1, 3)), class_iteration_depth(ParameterSet(2, 2, 1, 3))
+    (1, 2)
+    """
+    return max(iteration_depth(q) for q in class_reading_representatives(p))
+
+
+def class_transition_group(p: ParameterSet) -> tuple[int, int]:
+    """The transition group with the largest d1 among the readings of p's class.
+
+    The group Z^2/L depends on the typed structure, so the readings of an exceptional class
+    differ (C(2,2,1,3): Z_8, C(2,2,2,2): Z_2 x Z_4); the catalog stores this maximum.
+    """
+    return max(transition_group(q) for q in class_reading_representatives(p))

@@ -11,6 +11,7 @@ from dataclasses import dataclass
 from fractions import Fraction
 from math import comb, gcd
 
+from zoo.algebra import points_at_level
 from zoo.params import ParameterSet
 
 
@@ -51,7 +52,10 @@ def process_count(p: ParameterSet) -> int:
 
 
 def is_regular(p: ParameterSet) -> bool:
-    """Regular cycloid: beta divides delta, so every forward cycle carries one token (theory.md §7)."""
+    """Regular cycloid: beta | delta, so every forward cycle carries one token (theory.md §7).
+
+    Equivalently there are exactly beta forward cycles, the beta sequential processes.
+    """
     return p.delta % p.beta == 0
 
 
@@ -116,26 +120,89 @@ def one_token_formula_applies(p: ParameterSet) -> bool:
     return p.alpha <= p.beta + p.delta
 
 
-def minimal_cycle_length(p: ParameterSet) -> int:
-    """cyc ("loop"): the length, in transitions, of a shortest cycle of C(p) (theory.md §4).
+def shortest_cycle_vector(p: ParameterSet) -> tuple[int, int]:
+    """A lattice vector (xi, eta), xi, eta >= 0, of a shortest cycle, by the exact algorithm.
 
-    cyc = min{xi + eta : (xi, eta) in L \\ {0}, xi, eta >= 0}. A lattice vector
-    mP + nR has n tokens and length n(gamma + delta) + m(alpha - beta); for each n the admissible
-    m form an interval and the length is linear in m, so only its ends matter. The closed
-    formula is used as a fast path where its condition holds. [Derived; equals the BFS girth of
-    every net with all parameters <= 7 in theory.md and up to area 40 in tests.]
+    A cycle of C(p) lifts to a path from x to x + mP + nR whose displacement
+    (xi, eta) = (m*alpha + n*gamma, n*delta - m*beta) has xi, eta >= 0; it has xi + eta
+    transitions and n tokens (theory.md §3.2). For each n the admissible m form the interval
+    ceil(-n*gamma/alpha) <= m <= floor(n*delta/beta) and the length
+    n*(gamma + delta) + m*(alpha - beta) is linear in m, so only its ends matter; n need not pass
+    (gamma + delta)*max(alpha, beta)/A because a vector with n tokens has length at least
+    n*A/max(alpha, beta) and R itself has length gamma + delta (theory.md §4). Among shortest
+    vectors the one with fewest tokens, then smallest xi, is returned. [Derived; equal to the
+    breadth-first girth of the explicit net in theory.md (all parameters <= 7) and in
+    tests/test_invariants.py.]
+
+    >>> shortest_cycle_vector(ParameterSet(1, 6, 1, 3))
+    (3, 0)
     """
-    if one_token_formula_applies(p):
-        return one_token_loop(p)
     a, b, c, d = p.as_tuple()
-    best = c + d
+    best = (c + d, 1, c, d)  # (length, tokens, xi, eta): R itself
     n_max = (c + d) * max(a, b) // p.area
     for n in range(1, n_max + 1):
         m_lo = -((n * c) // a)  # ceil(-n*gamma/alpha)
         m_hi = (n * d) // b
-        if m_lo <= m_hi:
-            for m in (m_lo, m_hi):
-                length = n * (c + d) + m * (a - b)
-                if 0 < length < best:
-                    best = length
-    return best
+        if m_lo > m_hi:
+            continue
+        for m in (m_lo, m_hi):
+            xi, eta = m * a + n * c, n * d - m * b
+            candidate = (xi + eta, n, xi, eta)
+            if candidate < best:
+                best = candidate
+    return (best[2], best[3])
+
+
+def minimal_cycle_length_exact(p: ParameterSet) -> int:
+    """cyc by the exact lattice algorithm of theory.md §4 alone, without the closed fast path."""
+    xi, eta = shortest_cycle_vector(p)
+    return xi + eta
+
+
+def minimal_cycle_length(p: ParameterSet) -> int:
+    """cyc ("loop"): the number of transitions on a shortest cycle of C(p) (theory.md §4).
+
+    cyc = min{xi + eta : (xi, eta) in L \\ {0}, xi, eta >= 0}, computed by the exact algorithm
+    (``shortest_cycle_vector``). The one-token closed formula cyc_1 is used only as a fast path
+    where the theorem of theory.md §4 guarantees it (checked against the exact algorithm on
+    every parameter set <= 8 and against breadth-first girth in tests/test_invariants.py).
+
+    >>> minimal_cycle_length(ParameterSet(4, 2, 2, 3))
+    5
+    >>> minimal_cycle_length(ParameterSet(1, 10, 1, 5))  # cyc_1 would say 6
+    3
+    """
+    if one_token_formula_applies(p):
+        return one_token_loop(p)
+    return minimal_cycle_length_exact(p)
+
+
+def enabled_transitions(p: ParameterSet) -> list[tuple[int, int]]:
+    """The transitions enabled at M0, as parallelogram representatives (theory.md §3.1).
+
+    A forward place is marked iff its output transition t has L(t) mod A in 1..beta, a backward
+    place iff L(t) mod A in 1..alpha; so t is enabled iff L(t) mod A in 1..min(alpha, beta).
+    There are min(alpha, beta) of them [VERIFIED in theory.md, all parameters <= 7].
+
+    >>> enabled_transitions(ParameterSet(4, 2, 2, 3))
+    [(1, 0), (3, -1)]
+    """
+    found: list[tuple[int, int]] = []
+    for value in range(1, min(p.alpha, p.beta) + 1):
+        found.extend(points_at_level(p, value))
+    return sorted(found)
+
+
+def semi_enabled_transitions(p: ParameterSet) -> list[tuple[int, int]]:
+    """The transitions with exactly one marked input place at M0 (theory.md §3.1).
+
+    These are the t with min(alpha, beta) < L(t) mod A <= max(alpha, beta): |alpha - beta| of
+    them. ("Semi-enabled" is this project's word, not confirmed as the papers' term.)
+
+    >>> semi_enabled_transitions(ParameterSet(4, 2, 2, 3))
+    [(2, 0), (4, -1)]
+    """
+    found: list[tuple[int, int]] = []
+    for value in range(min(p.alpha, p.beta) + 1, max(p.alpha, p.beta) + 1):
+        found.extend(points_at_level(p, value))
+    return sorted(found)

@@ -1,3 +1,687 @@
-"""Commands of zoo: catalog (filled in by its owner)."""
+"""Commands of zoo: ``build``, ``find``, ``stats``, ``migrate`` and ``show ID`` (``show_entry``).
 
-from zoo.cli.app import app  # noqa: F401
+A thin layer over ``zoo.catalog``: it parses options, shows a progress bar on standard error and
+formats answers. Every answer says up to which area the catalog is complete: on standard output
+under a table, on standard error for the machine formats (csv, json, jsonl, ``--count``), so that
+standard output stays parseable.
+"""
+
+from __future__ import annotations
+
+import csv
+import json
+import sys
+from collections.abc import Sequence
+from enum import StrEnum
+from pathlib import Path
+from typing import TYPE_CHECKING, Annotated, Any
+
+import typer
+
+from zoo.cli.app import app, fail
+from zoo.errors import ParameterError, ZooError
+
+if TYPE_CHECKING:
+    from rich.progress import Progress, TaskID
+
+    from zoo.catalog import AreaStats, BuildReport, Catalog, ClassEntry, FindResult
+
+
+class FindFormat(StrEnum):
+    """How ``find`` prints its answer."""
+
+    table = "table"
+    csv = "csv"
+    json = "json"
+    jsonl = "jsonl"
+
+
+class StatsFormat(StrEnum):
+    """How ``stats`` prints its answer."""
+
+    table = "table"
+    json = "json"
+
+
+DbOption = Annotated[
+    str | None,
+    typer.Option(
+        "--db",
+        help="Catalog file or database URL (postgresql+psycopg://...). Default: $ZOO_CATALOG, "
+        "else catalog.sqlite3 in the user data directory.",
+    ),
+]
+JobsOption = Annotated[
+    int | None,
+    typer.Option(
+        "--jobs",
+        "-j",
+        min=1,
+        help="Worker processes that classify areas (the writer is one more). Default: the "
+        "usable cores, at most 4.",
+    ),
+]
+
+#: Columns of ``find`` when --columns is not given.
+DEFAULT_COLUMNS = ("loop", "tokens", "processes", "states", "frame")
+
+
+def _console(stderr: bool = False) -> Any:
+    """A rich console; off a terminal it never folds lines, so pipes get whole rows."""
+    from rich.console import Console
+
+    console = Console(stderr=stderr, highlight=False, soft_wrap=False)
+    if not console.is_terminal:
+        console = Console(stderr=stderr, highlight=False, soft_wrap=True, width=10_000)
+    return console
+
+
+# --- progress --------------------------------------------------------------------------------
+
+
+class ProgressBar:
+    """A ``zoo.catalog.BuildProgress`` drawn with rich.progress on standard error."""
+
+    def __init__(self, title: str = "Building catalog") -> None:
+        self.title = title
+        self._progress: Progress | None = None
+        self._task: TaskID | None = None
+        self._areas_total = 0
+        self._areas_done = 0
+
+    def started(self, areas: Sequence[int], parameter_sets: int) -> None:
+        from rich.progress import (
+            BarColumn,
+            MofNCompleteColumn,
+            Progress,
+            TextColumn,
+            TimeElapsedColumn,
+            TimeRemainingColumn,
+        )
+
+        if not areas:
+            return
+        self._areas_total = len(areas)
+        self._progress = Progress(
+            TextColumn("{task.description}"),
+            BarColumn(),
+            MofNCompleteColumn(),
+            TextColumn("parameter sets"),
+            TextColumn("{task.fields[areas]}"),
+            TimeElapsedColumn(),
+            TextColumn("left"),
+            TimeRemainingColumn(),
+            console=_console(stderr=True),
+        )
+        self._task = self._progress.add_task(
+            self.title, total=parameter_sets, areas=f"areas 0/{len(areas)}"
+        )
+        self._progress.start()
+
+    def area_done(self, stats: AreaStats) -> None:
+        if self._progress is None or self._task is None:
+            return
+        self._areas_done += 1
+        self._progress.update(
+            self._task,
+            advance=stats.parameter_sets,
+            areas=f"areas {self._areas_done}/{self._areas_total} (area {stats.area}: "
+            f"{stats.classes} classes)",
+        )
+
+    def finished(self, report: BuildReport) -> None:
+        self.stop()
+
+    def stop(self) -> None:
+        if self._progress is not None:
+            self._progress.stop()
+            self._progress = None
+
+
+def _build_summary(report: BuildReport) -> str:
+    if not report.added:
+        return f"Nothing to do: the catalog is already complete up to area {report.complete_to}."
+    first, last = report.added[0], report.added[-1]
+    span = f"area {first}" if first == last else f"areas {first}..{last}"
+    return (
+        f"Stored {span}: {report.parameter_sets:,} parameter sets, {report.readings:,} "
+        f"readings, {report.classes:,} classes, {report.frames:,} frames "
+        f"({report.canonical_forms:,} nauty canonical forms, all agreeing with the algebra) in "
+        f"{report.wall_seconds:.1f} s. The catalog is complete up to area {report.complete_to}."
+    )
+
+
+def _run_build(build: Any) -> BuildReport:
+    """Run a build with a progress bar; report disagreements and interruptions clearly."""
+    from zoo.classify import ClassificationDisagreement
+
+    bar = ProgressBar()
+    try:
+        report: BuildReport = build(bar)
+    except ClassificationDisagreement as exc:
+        bar.stop()
+        for line in exc.report:
+            typer.echo(f"  {line}", err=True)
+        raise fail(str(exc)) from None
+    except KeyboardInterrupt:
+        bar.stop()
+        typer.echo(
+            "Interrupted: every area stored so far is complete and kept; run the same command "
+            "again to resume.",
+            err=True,
+        )
+        raise typer.Exit(130) from None
+    except ZooError as exc:
+        bar.stop()
+        raise fail(str(exc)) from None
+    return report
+
+
+# --- build -----------------------------------------------------------------------------------
+
+
+@app.command("build")
+def build(
+    max_area: Annotated[
+        int,
+        typer.Option(
+            "--max-area",
+            "-n",
+            help="Store every parameter set of area at most N (areas already stored are kept).",
+        ),
+    ] = 100,
+    db: DbOption = None,
+    jobs: JobsOption = None,
+) -> None:
+    """Enumerate, classify and store every cycloid up to an area; resumes where it stopped.
+
+    Each area is stored in one transaction, so an interrupted build keeps every area it
+    finished. Example: zoo build --max-area 60 --jobs 2
+    """
+    from zoo.catalog import Catalog, default_jobs
+
+    try:
+        catalog = Catalog.open(db, create=True)
+    except ZooError as exc:
+        raise fail(str(exc)) from None
+    try:
+        report = _run_build(
+            lambda bar: catalog.build(max_area, jobs=jobs or default_jobs(), progress=bar)
+        )
+    finally:
+        catalog.close()
+    typer.echo(_build_summary(report))
+
+
+# --- find ------------------------------------------------------------------------------------
+
+
+@app.command("find")
+def find(
+    query: Annotated[
+        str,
+        typer.Argument(
+            help="A query such as 'processes = 3 and area < 100' (see docs/query-language.md); "
+            "'' matches every class.",
+            show_default=False,
+        ),
+    ] = "",
+    sort: Annotated[
+        str | None,
+        typer.Option("--sort", "-s", help="Sort by a field; prefix - for descending (-states)."),
+    ] = None,
+    limit: Annotated[
+        int | None, typer.Option("--limit", "-l", min=0, help="Print at most this many classes.")
+    ] = None,
+    columns: Annotated[
+        list[str] | None,
+        typer.Option(
+            "--columns",
+            "-c",
+            help="Fields to show, comma-separated or repeated (e.g. loop,states,regular).",
+        ),
+    ] = None,
+    fmt: Annotated[
+        FindFormat,
+        typer.Option("--format", "-f", help="table, csv, json (one array) or jsonl (JSON Lines)."),
+    ] = FindFormat.table,
+    count: Annotated[
+        bool, typer.Option("--count", help="Print only the number of matching classes.")
+    ] = False,
+    seed: Annotated[
+        str | None,
+        typer.Option(
+            "--seed", help="Keep only classes with a seed whose name contains this text."
+        ),
+    ] = None,
+    db: DbOption = None,
+    jobs: JobsOption = None,
+) -> None:
+    """Find the catalog classes that match a query.
+
+    When no catalog exists yet, the default one (area up to 100) is built first, once.
+    Example: zoo find "processes = 3 and area < 100" --sort -states --limit 10
+    """
+    from zoo import catalog as catalog_service
+    from zoo.catalog import ensure_catalog
+    from zoo.storage.database import catalog_exists, display_location, resolve_location
+
+    try:
+        url = resolve_location(db)
+        if not catalog_exists(url):
+            typer.echo(
+                f"No catalog at {display_location(url)} yet: building areas "
+                f"1..{catalog_service.DEFAULT_MAX_AREA} "
+                "once (later queries answer at once).",
+                err=True,
+            )
+        holder: dict[str, Catalog] = {}
+
+        def _open(bar: ProgressBar) -> BuildReport | None:
+            catalog, report = ensure_catalog(db, jobs=jobs, progress=bar)
+            holder["catalog"] = catalog
+            return report
+
+        _run_build(_open)
+        catalog = holder["catalog"]
+        try:
+            if count:
+                number = catalog.count(query, seed=seed)
+                note = _note_for(catalog, query)
+                typer.echo(str(number))
+                typer.echo(note, err=True)
+                return
+            result = catalog.find(query, sort=sort, limit=limit, seed=seed, columns=columns)
+        finally:
+            catalog.close()
+    except ZooError as exc:
+        if hasattr(exc, "caret_text") and getattr(exc, "query", ""):
+            typer.echo(f"Error: {exc}", err=True)
+            typer.echo(exc.caret_text(), err=True)  # type: ignore[attr-defined]
+            raise typer.Exit(1) from None
+        raise fail(str(exc)) from None
+    _print_find(result, fmt, columns)
+
+
+def _note_for(catalog: Catalog, query: str) -> str:
+    from zoo.catalog import FindResult
+    from zoo.query import parse_query, referenced_area_bound
+
+    bound = referenced_area_bound(parse_query(query)) if query.strip() else None
+    return FindResult(query, (), 0, catalog.complete_to(), bound).completeness_note()
+
+
+def _requested_columns(columns: Sequence[str] | None) -> list[str]:
+    if not columns:
+        return list(DEFAULT_COLUMNS)
+    from zoo.query import parse_field_names
+
+    names: list[str] = []
+    for text in columns:
+        for name in parse_field_names(text):
+            if name not in names and name not in ("area",):
+                names.append(name)
+    return names
+
+
+def _members_text(entry: ClassEntry, short: bool) -> str:
+    """All members separated by spaces (csv), or their number (table: the list can be long)."""
+    if short:
+        return str(len(entry.members))
+    return " ".join(str(p) for p in entry.members)
+
+
+def _default_value(entry: ClassEntry, name: str) -> str:
+    """Default column values, read from the loaded entry (no extra query)."""
+    if name == "frame":
+        return entry.frame_id
+    if name == "processes":
+        values = sorted({int(str(r["processes"])) for r in entry.readings})
+        return str(values[0]) if len(values) == 1 else f"{values[0]}..{values[-1]}"
+    value = entry.invariants.get(name)
+    return "" if value is None else str(value)
+
+
+def _cell(result: FindResult, index: int, name: str, custom: bool) -> str:
+    entry = result.entries[index]
+    if custom:
+        value = result.columns[index].get(name) if result.columns else None
+        return "" if value is None else str(value)
+    return _default_value(entry, name)
+
+
+def _typed(text: str | None) -> object:
+    """A column value for JSON: whole numbers as numbers, yes/no as booleans, else the text."""
+    if text is None:
+        return None
+    if text in ("yes", "no"):
+        return text == "yes"
+    if text.lstrip("-").isdigit():
+        return int(text)
+    return text
+
+
+def _print_find(result: FindResult, fmt: FindFormat, columns: Sequence[str] | None) -> None:
+    sys.set_int_max_str_digits(0)
+    custom = bool(columns)
+    names = _requested_columns(columns)
+    note = result.completeness_note()
+    shown = len(result.entries)
+    summary = f"{result.total:,} classes match" + (
+        f"; showing {shown:,}." if shown < result.total else "."
+    )
+    if fmt is FindFormat.table:
+        from rich.table import Table
+
+        table = Table(show_header=True, header_style="bold", box=None, pad_edge=False)
+        for heading in ("id", "label", "area", *names, "members"):
+            table.add_column(heading, no_wrap=True)
+        for index, entry in enumerate(result.entries):
+            table.add_row(
+                entry.id,
+                entry.label,
+                str(entry.area),
+                *(_cell(result, index, n, custom) for n in names if n != "members"),
+                _members_text(entry, short=True),
+            )
+        console = _console()
+        if result.entries:
+            console.print(table)
+        console.print(summary)
+        console.print(note)
+        return
+    typer.echo(summary, err=True)
+    typer.echo(note, err=True)
+    if fmt is FindFormat.csv:
+        writer = csv.writer(sys.stdout, lineterminator="\n")
+        headings = ["id", "label", "area", *[n for n in names if n != "members"], "members"]
+        writer.writerow(headings)
+        for index, entry in enumerate(result.entries):
+            writer.writerow(
+                [
+                    entry.id,
+                    entry.label,
+                    entry.area,
+                    *(_cell(result, index, n, custom) for n in names if n != "members"),
+                    _members_text(entry, short=False),
+                ]
+            )
+        return
+    objects: list[dict[str, object]] = []
+    for index, entry in enumerate(result.entries):
+        if custom:
+            item: dict[str, object] = {
+                "id": entry.id,
+                "label": entry.label,
+                "area": entry.area,
+                "members": [str(p) for p in entry.members],
+            }
+            for name in names:
+                if name not in item:
+                    item[name] = _typed(result.columns[index].get(name))
+            objects.append(item)
+        else:
+            objects.append(entry.as_dict())
+    if fmt is FindFormat.json:
+        typer.echo(json.dumps(objects, indent=2, ensure_ascii=False))
+    else:
+        for item in objects:
+            typer.echo(json.dumps(item, ensure_ascii=False))
+
+
+# --- show ID ---------------------------------------------------------------------------------
+
+
+def show_entry(ref: str, fmt: str, db: str | None) -> None:
+    """Print the catalog entry of a class or frame identifier (``zoo show CY16-3``).
+
+    Everything stored: every invariant, every member, the readings, the frame and the other
+    classes on it, the seeds, and a citation line. ``fmt`` is ``table`` or ``json``. Never
+    builds a catalog; raises ZooError (the caller prints it) when the entry is not there.
+    """
+    from zoo.catalog import Catalog
+    from zoo.cite import cite
+    from zoo.identifiers import read_identifier
+
+    identifier = read_identifier(ref)
+    with Catalog.open(db) as catalog:
+        citation = cite(catalog, ref).text()
+        if identifier is not None and identifier.kind == "frame":
+            frame = catalog.frame(str(identifier))
+            report: dict[str, Any] = {**frame.as_dict(), "citation": citation}
+            report["complete_to"] = catalog.complete_to()
+            labels = {c: catalog.get(c).label for c in frame.class_ids}
+            report["class_labels"] = labels
+        else:
+            entry = catalog.get(ref)
+            frame = catalog.frame(entry.frame_id)
+            report = entry.as_dict()
+            report["frame"] = {
+                "id": frame.id,
+                "label": frame.label,
+                "net_automorphisms": frame.automorphisms,
+                "lattice_key": list(frame.lattice_key),
+                "other_classes": [c for c in frame.class_ids if c != entry.id],
+            }
+            report["citation"] = citation
+            report["complete_to"] = catalog.complete_to()
+    if fmt == "json":
+        sys.set_int_max_str_digits(0)
+        typer.echo(json.dumps(report, indent=2, ensure_ascii=False))
+        return
+    if "classes" in report:
+        _print_frame_table(report)
+    else:
+        _print_entry_table(report)
+
+
+def _number_text(value: object) -> str:
+    if isinstance(value, bool):
+        return "yes" if value else "no"
+    if isinstance(value, int):
+        sys.set_int_max_str_digits(0)
+        digits = str(abs(value))
+        if len(digits) > 40:
+            return f"{digits[:12]}...{digits[-6:]} ({len(digits)} digits; exact in --format json)"
+        return f"{value:,}"
+    if isinstance(value, list):
+        return " x ".join(str(v) for v in value) if value else "-"
+    return str(value)
+
+
+def _print_entry_table(report: dict[str, Any]) -> None:
+    from rich.table import Table
+
+    console = _console()
+    console.print(f"[bold]{report['id']}[/bold]  {report['label']}  (area {report['area']})")
+    table = Table(show_header=False, box=None, pad_edge=False)
+    table.add_column("field", style="bold")
+    table.add_column("value")
+    rows = [
+        ("loop (shortest cycle)", report["loop"]),
+        ("reachable states", report["states"]),
+        ("state arcs", report["state_arcs"]),
+        ("automorphisms (marked net)", report["automorphisms"]),
+        ("automorphisms (net)", report["net_automorphisms"]),
+        ("tokens", report["tokens"]),
+        ("enabled / semi-enabled", f"{report['enabled']} / {report['semi_enabled']}"),
+        ("cycle time", report["cycle_time"]),
+        ("transition group", "Z_{} x Z_{}".format(*report["group"])),
+        ("cyclic group", report["cyclic"]),
+        ("iteration depth", report["iteration"]),
+        ("fingerprint", report["fingerprint"]),
+    ]
+    for name, value in rows:
+        table.add_row(name, _number_text(value))
+    console.print(table)
+    members = ", ".join(report["members"])
+    console.print(f"[bold]Members[/bold] ({len(report['members'])}): {members}")
+    readings = Table(show_header=True, header_style="bold", box=None, pad_edge=False)
+    for heading in (
+        "reading", "processes", "regular", "slowness", "forward", "backward", "NF_bd", "NF_ag",
+        "members",
+    ):
+        readings.add_column(heading)
+    for r in report["readings"]:
+        fwd, bwd = r["forward_cycles"], r["backward_cycles"]
+        readings.add_row(
+            r["label"],
+            str(r["processes"]),
+            "yes" if r["regular"] else "no",
+            r["slowness"],
+            f"{fwd['count']}x{fwd['length']} ({fwd['tokens']})",
+            f"{bwd['count']}x{bwd['length']} ({bwd['tokens']})",
+            r["normal_form_beta_delta"],
+            r["normal_form_alpha_gamma"],
+            ", ".join(r["members"]),
+        )
+    console.print("[bold]Readings[/bold]")
+    console.print(readings)
+    frame = report["frame"]
+    others = ", ".join(frame["other_classes"]) or "none"
+    console.print(
+        f"[bold]Frame[/bold] {frame['id']} {frame['label']} (net automorphisms "
+        f"{_number_text(frame['net_automorphisms'])}); other classes on it: {others}"
+    )
+    if report["seeds"]:
+        console.print("[bold]Seeds[/bold]")
+        for s in report["seeds"]:
+            console.print(f"  {s['name']}: {s['description']} ({s['params']})")
+    console.print(f"The catalog is complete up to area {report['complete_to']}.")
+    console.print(f"[bold]Cite as[/bold]: {report['citation']}")
+
+
+def _print_frame_table(report: dict[str, Any]) -> None:
+    console = _console()
+    console.print(f"[bold]{report['id']}[/bold]  {report['label']}  (area {report['area']}, frame)")
+    console.print(f"net automorphisms: {_number_text(report['net_automorphisms'])}")
+    console.print(f"lattice key (A, g, r): {tuple(report['lattice_key'])}")
+    console.print(f"fingerprint: {report['fingerprint']}")
+    console.print(f"[bold]Classes on this frame[/bold] ({len(report['classes'])}):")
+    for class_id, label in report["class_labels"].items():
+        console.print(f"  {class_id}  {label}")
+    console.print(f"The catalog is complete up to area {report['complete_to']}.")
+    console.print(f"[bold]Cite as[/bold]: {report['citation']}")
+
+
+# --- stats -----------------------------------------------------------------------------------
+
+
+@app.command("stats")
+def stats(
+    fmt: Annotated[
+        StatsFormat, typer.Option("--format", "-f", help="table, or json (a list of objects).")
+    ] = StatsFormat.table,
+    plot: Annotated[
+        Path | None,
+        typer.Option("--plot", dir_okay=False, help="Also draw the counts to a .png or .svg file."),
+    ] = None,
+    db: DbOption = None,
+) -> None:
+    """Per area: numbers of parameter sets, readings, classes and frames.
+
+    Example: zoo stats --plot counts.svg
+    """
+    from zoo.catalog import Catalog
+
+    try:
+        if plot is not None and plot.suffix.lower() not in (".png", ".svg"):
+            raise ParameterError(
+                f"--plot {plot} has suffix {plot.suffix or '(none)'!r}; "
+                "write to a .png or .svg file"
+            )
+        with Catalog.open(db) as catalog:
+            rows = [s for s in catalog.stats() if s.complete]
+            complete = catalog.complete_to()
+        if plot is not None:
+            draw_stats(rows, plot)
+    except ZooError as exc:
+        raise fail(str(exc)) from None
+    note = f"The catalog is complete up to area {complete}."
+    if fmt is StatsFormat.json:
+        typer.echo(json.dumps([s.as_dict() for s in rows], indent=2))
+        typer.echo(note, err=True)
+    else:
+        from rich.table import Table
+
+        table = Table(show_header=True, header_style="bold", box=None, pad_edge=False)
+        for heading in ("area", "parameter sets", "readings", "classes", "frames"):
+            table.add_column(heading, justify="right")
+        for s in rows:
+            table.add_row(
+                str(s.area), f"{s.parameter_sets:,}", f"{s.readings:,}", f"{s.classes:,}",
+                f"{s.frames:,}",
+            )
+        table.add_row(
+            "total",
+            f"{sum(s.parameter_sets for s in rows):,}",
+            f"{sum(s.readings for s in rows):,}",
+            f"{sum(s.classes for s in rows):,}",
+            f"{sum(s.frames for s in rows):,}",
+            style="bold",
+        )
+        console = _console()
+        console.print(table)
+        console.print(note)
+    if plot is not None:
+        typer.echo(f"Wrote {plot}", err=True)
+
+
+def draw_stats(rows: Sequence[AreaStats], path: Path) -> None:
+    """Draw the per-area counts (log scale) to a PNG or SVG file with matplotlib's Agg backend."""
+    import matplotlib
+
+    matplotlib.use("Agg")
+    from matplotlib.figure import Figure
+
+    if not rows:
+        raise ZooError("the catalog holds no complete area yet; build one with: zoo build")
+    figure = Figure(figsize=(8, 5), dpi=120)
+    axes = figure.subplots()
+    areas = [s.area for s in rows]
+    series = (
+        ("parameter sets", [s.parameter_sets for s in rows], "o"),
+        ("readings", [s.readings for s in rows], "s"),
+        ("classes", [s.classes for s in rows], "^"),
+        ("frames", [s.frames for s in rows], "D"),
+    )
+    for name, values, marker in series:
+        points = [(a, v) for a, v in zip(areas, values, strict=True) if v > 0]
+        axes.plot(
+            [a for a, _ in points], [v for _, v in points], marker=marker, markersize=3,
+            linewidth=1, label=name,
+        )
+    axes.set_yscale("log")
+    axes.set_xlabel("area A = number of transitions")
+    axes.set_ylabel("count (log scale)")
+    axes.set_title(f"Cycloids per area, areas {areas[0]}..{areas[-1]}")
+    axes.grid(True, which="major", alpha=0.3)
+    axes.legend()
+    figure.tight_layout()
+    try:
+        figure.savefig(path, format=path.suffix.lower().lstrip("."))
+    except OSError as exc:
+        raise ZooError(f"cannot write the plot {path}: {exc.strerror}") from None
+
+
+# --- migrate ---------------------------------------------------------------------------------
+
+
+@app.command("migrate")
+def migrate(db: DbOption = None) -> None:
+    """Create the catalog schema, or upgrade it to this zoo's revision (no data is lost).
+
+    Example: zoo migrate --db catalog.sqlite3
+    """
+    from zoo.storage import database
+
+    try:
+        url = database.resolve_location(db)
+        change = database.upgrade(url)
+    except ZooError as exc:
+        raise fail(str(exc)) from None
+    shown = database.display_location(url)
+    if change.changed:
+        typer.echo(f"Catalog {shown}: schema revision {change.before or 'none'} -> {change.after}.")
+    else:
+        typer.echo(f"Catalog {shown}: schema revision {change.after} is current; nothing to do.")

@@ -1,3 +1,262 @@
-"""Commands of zoo: interchange (filled in by its owner)."""
+"""Commands of zoo: ``export`` (a cycloid's net as PNML, DOT, SVG, JSON or net text) and
+``identify`` (is a net in a file a cycloid system, and which one).
 
-from zoo.cli.app import app  # noqa: F401
+A thin layer: the documents come from ``zoo.formats``, pictures from ``zoo.draw`` and the
+answers from ``zoo.identify``; this module parses arguments, resolves references through the
+catalog service and writes files.
+"""
+
+from __future__ import annotations
+
+import json
+import os
+import sys
+import tempfile
+from enum import StrEnum
+from pathlib import Path
+from typing import Annotated, NoReturn
+
+import typer
+
+from zoo.cli.app import app
+from zoo.errors import FormatError, ZooError
+from zoo.params import ParameterSet, parse_params
+
+DbOption = Annotated[
+    str | None,
+    typer.Option(
+        "--db",
+        help="Catalog file or database URL (default: $ZOO_CATALOG, else the user data "
+        "directory). Read only: never built or changed.",
+    ),
+]
+
+# Parameter sets such as -1,2,2,3 must reach our parser (which explains what is wrong) instead
+# of being taken for unknown options.
+_LOOSE = {"ignore_unknown_options": True}
+
+
+def _exit_with_error(message: str) -> NoReturn:
+    """Print ``Error: message`` and exit with status 1.
+
+    SystemExit, not typer.Exit: the console entry point runs the app with
+    standalone_mode=False, where typer.Exit turns into a return value and the status would be 0.
+    """
+    typer.echo(f"Error: {message}", err=True)
+    raise SystemExit(1)
+
+
+class ExportFormat(StrEnum):
+    """File formats of ``export``."""
+
+    pnml = "pnml"
+    dot = "dot"
+    svg = "svg"
+    json = "json"
+    text = "text"
+
+
+_SUFFIXES = {
+    ".pnml": ExportFormat.pnml,
+    ".xml": ExportFormat.pnml,
+    ".dot": ExportFormat.dot,
+    ".gv": ExportFormat.dot,
+    ".svg": ExportFormat.svg,
+    ".json": ExportFormat.json,
+    ".mgraph": ExportFormat.text,
+    ".txt": ExportFormat.text,
+}
+
+
+class AnswerFormat(StrEnum):
+    """How ``identify`` prints its answers."""
+
+    text = "text"
+    json = "json"
+
+
+def resolve_reference(ref: str, db: str | None) -> ParameterSet:
+    """A parameter set typed directly (or a label), or the label of a catalog class identifier."""
+    from zoo.identifiers import read_identifier
+
+    identifier = read_identifier(ref)
+    if identifier is None:
+        return parse_params(ref)
+    if identifier.kind == "frame":
+        raise FormatError(
+            f"{identifier} is a frame (an unmarked net); export a class such as "
+            f"CY{identifier.area}-1 or a parameter set"
+        )
+    from zoo.catalog import Catalog
+
+    catalog = Catalog.open(db)
+    try:
+        entry = catalog.get(ref.strip())
+    finally:
+        catalog.close()
+    return parse_params(entry.label)
+
+
+def export_document(p: ParameterSet, fmt: ExportFormat) -> str:
+    """The net of C(p) as text in the chosen format."""
+    if fmt is ExportFormat.svg:
+        try:
+            from zoo.draw import draw_net_svg
+        except ImportError:  # pragma: no cover - zoo.draw ships with zoo
+            raise FormatError("SVG export needs zoo.draw, which is not installed") from None
+        return draw_net_svg(p)
+    from zoo.net import build_net
+
+    net = build_net(p)
+    if fmt is ExportFormat.pnml:
+        from zoo.formats.pnml import pnml_document
+
+        return pnml_document(net)
+    if fmt is ExportFormat.dot:
+        from zoo.formats.dot import dot_document
+
+        return dot_document(net)
+    if fmt is ExportFormat.json:
+        from zoo.formats.jsonnet import json_document
+
+        return json_document(net)
+    from zoo.formats.nettext import net_text
+
+    return net_text(net)
+
+
+def write_atomically(path: Path, data: bytes) -> None:
+    """Write through a temporary file in the same folder, then rename over ``path``.
+
+    A failure half-way leaves any existing file at ``path`` as it was.
+    """
+    folder = path.parent if str(path.parent) else Path(".")
+    if not folder.is_dir():
+        raise FormatError(f"folder {str(folder)!r} for the output file does not exist; create it")
+    handle, temporary = tempfile.mkstemp(prefix=f".{path.name}.", dir=folder)
+    try:
+        with os.fdopen(handle, "wb") as out:
+            out.write(data)
+        os.replace(temporary, path)
+    except BaseException:
+        Path(temporary).unlink(missing_ok=True)
+        raise
+
+
+def _export_format(fmt: ExportFormat | None, output: Path | None) -> ExportFormat:
+    if fmt is not None:
+        return fmt
+    if output is not None:
+        suffix = output.suffix.lower()
+        if suffix in _SUFFIXES:
+            return _SUFFIXES[suffix]
+        raise FormatError(
+            f"cannot tell the format from the suffix {suffix or '(none)'!r} of {output}; "
+            "give --format pnml, dot, svg, json or text"
+        )
+    return ExportFormat.pnml
+
+
+@app.command("export", context_settings=_LOOSE)
+def export(
+    ref: Annotated[
+        list[str],
+        typer.Argument(
+            metavar="PARAMS|ID",
+            help="A parameter set (4,2,2,3 or C(4,2,2,3)) or a class identifier such as CY16-3 "
+            "(exports the net of the class's label).",
+            show_default=False,
+        ),
+    ],
+    fmt: Annotated[
+        ExportFormat | None,
+        typer.Option(
+            "--format", "-f",
+            help="pnml (ISO/IEC 15909-2 PT net), dot (Graphviz text), svg (picture), json, or "
+            "text (zoo's marked-graph text). Default: from the --output suffix, else pnml.",
+        ),
+    ] = None,
+    output: Annotated[
+        Path | None,
+        typer.Option("--output", "-o", help="File to write (default: standard output).",
+                     dir_okay=False),
+    ] = None,
+    db: DbOption = None,
+) -> None:
+    """Write the net of a cycloid system, laid out on its fundamental parallelogram.
+
+    Example: zoo export 4,2,2,3 --output c4223.pnml
+    """
+    try:
+        chosen = _export_format(fmt, output)
+        p = resolve_reference(" ".join(ref), db)
+        document = export_document(p, chosen)
+        if output is None:
+            sys.stdout.write(document)
+            return
+        write_atomically(output, document.encode("utf-8"))
+    except ZooError as exc:
+        _exit_with_error(str(exc))
+    typer.echo(f"Wrote {output} (net of {p}, {chosen.value}, {len(document):,} characters)",
+               err=True)
+
+
+@app.command("identify")
+def identify(
+    files: Annotated[
+        list[Path],
+        typer.Argument(
+            metavar="FILE...",
+            help="PNML files or marked-graph text files (told apart by their content).",
+            show_default=False,
+        ),
+    ],
+    fmt: Annotated[
+        AnswerFormat,
+        typer.Option("--format", "-f",
+                     help="text: one line per file; json: one JSON object per line."),
+    ] = AnswerFormat.text,
+    mapping: Annotated[
+        bool,
+        typer.Option("--mapping", "-m",
+                     help="Text format: also list which element is which coordinate."),
+    ] = False,
+    db: DbOption = None,
+    no_catalog: Annotated[
+        bool, typer.Option("--no-catalog", help="Do not look up class identifiers.")
+    ] = False,
+) -> None:
+    """Decide whether the net in each file is a cycloid system; if so, which one and how.
+
+    A cycloid gets its class label, its catalog identifier and the isomorphism onto the label's
+    coordinates; any other net gets the first rule it breaks. Exit status 1 when a file cannot
+    be read. Example: zoo identify ring.pnml --format json
+    """
+    from zoo.identify import identify_file
+
+    unreadable = 0
+    for path in files:
+        try:
+            answer = identify_file(path, db, use_catalog=not no_catalog)
+        except ZooError as exc:
+            unreadable += 1
+            message = str(exc)
+            if fmt is AnswerFormat.json:
+                typer.echo(json.dumps({"file": str(path), "cycloid": None, "error": message},
+                                      ensure_ascii=False))
+            typer.echo(f"Error: {message}", err=True)
+            continue
+        if fmt is AnswerFormat.json:
+            typer.echo(json.dumps(answer.as_dict(), ensure_ascii=False))
+            continue
+        typer.echo(answer.summary())
+        if mapping and answer.cycloid:
+            for foreign, ours in answer.transition_map:
+                typer.echo(f"  transition {foreign} = {ours}")
+            for foreign, ours in answer.place_map:
+                typer.echo(f"  place {foreign} = {ours}")
+    if unreadable:
+        raise SystemExit(1)
+
+
+__all__ = ["ExportFormat", "export_document", "resolve_reference"]

@@ -1,0 +1,219 @@
+"""The catalog commands: build, find, show ID, stats, migrate (exact output where it matters)."""
+
+from __future__ import annotations
+
+import csv
+import io
+import json
+from pathlib import Path
+
+import pytest
+from typer.testing import CliRunner
+
+from zoo.cli import app
+from zoo.enumeration import cumulative_parameter_set_count
+
+runner = CliRunner()
+
+
+def invoke(*args: str) -> object:
+    return runner.invoke(app, list(args))
+
+
+@pytest.fixture(scope="module")
+def db(tmp_path_factory: pytest.TempPathFactory) -> str:
+    location = str(tmp_path_factory.mktemp("cli") / "catalog.sqlite3")
+    result = runner.invoke(app, ["build", "--max-area", "16", "--db", location, "--jobs", "2"])
+    assert result.exit_code == 0, result.output
+    return location
+
+
+def test_build_reports_what_it_stored_and_then_has_nothing_to_do(db: str) -> None:
+    result = invoke("build", "--max-area", "16", "--db", db)
+    assert result.exit_code == 0
+    assert result.stdout == (
+        "Nothing to do: the catalog is already complete up to area 16.\n"
+    )
+
+
+def test_build_summary(tmp_path: Path) -> None:
+    location = str(tmp_path / "small.sqlite3")
+    result = invoke("build", "-n", "5", "--db", location, "--jobs", "1")
+    assert result.exit_code == 0, result.output
+    total = cumulative_parameter_set_count(5)
+    assert result.stdout.startswith(f"Stored areas 1..5: {total} parameter sets, ")
+    assert result.stdout.rstrip().endswith("The catalog is complete up to area 5.")
+
+
+def test_find_json_objects_have_id_label_area_members(db: str) -> None:
+    result = invoke("find", "area = 8", "--db", db, "--format", "json")
+    assert result.exit_code == 0
+    objects = json.loads(result.stdout)
+    assert [o["id"] for o in objects] == [f"CY8-{r}" for r in range(1, len(objects) + 1)]
+    exceptional = next(o for o in objects if "C(2,2,2,2)" in o["members"])
+    assert exceptional["label"] == "C(2,2,1,3)" and exceptional["area"] == 8  # theory.md §5.1
+    assert exceptional["members"] == ["C(2,2,1,3)", "C(2,2,2,2)", "C(2,2,3,1)"]
+    assert "complete up to area 16" in result.stderr
+
+
+def test_find_jsonl_and_columns(db: str) -> None:
+    result = invoke(
+        "find", "regular and area <= 6", "--db", db, "-f", "jsonl", "--columns", "loop,regular",
+        "--sort", "-loop", "--limit", "3",
+    )
+    assert result.exit_code == 0
+    lines = [json.loads(line) for line in result.stdout.splitlines()]
+    assert len(lines) == 3
+    assert set(lines[0]) == {"id", "label", "area", "members", "loop", "regular"}
+    assert [o["loop"] for o in lines] == sorted((o["loop"] for o in lines), reverse=True)
+    assert all(o["regular"] is True or o["regular"] is False for o in lines)
+    assert "showing 3" in result.stderr
+
+
+def test_find_csv(db: str) -> None:
+    result = invoke("find", "area = 4", "--db", db, "--format", "csv", "--columns", "tokens")
+    assert result.exit_code == 0
+    rows = list(csv.reader(io.StringIO(result.stdout)))
+    assert rows[0] == ["id", "label", "area", "tokens", "members"]
+    assert rows[1][:3] == ["CY4-1", "C(1,1,1,3)", "4"]
+    assert rows[1][4].split() == ["C(1,1,1,3)", "C(1,1,2,2)", "C(1,1,3,1)"]
+
+
+def test_find_count_prints_the_number_alone(db: str) -> None:
+    result = invoke("find", "area <= 3", "--db", db, "--count")
+    assert result.exit_code == 0
+    # Area 2: C(1,1,1,1). Area 3: {C(1,1,1,2), C(1,1,2,1)} (one reading, a delta-step apart)
+    # and {C(1,2,1,1), C(2,1,1,1)} (a swap pair), theory.md §5.1-5.2.
+    assert result.stdout == "3\n"
+    assert result.stderr == "The catalog is complete up to area 16.\n"
+
+
+def test_find_table_and_warning_beyond_the_catalog(db: str) -> None:
+    result = invoke("find", "area <= 3", "--db", db)
+    assert result.exit_code == 0
+    lines = result.stdout.splitlines()
+    assert lines[0].split() == [
+        "id", "label", "area", "loop", "tokens", "processes", "states", "frame", "members",
+    ]
+    assert [line.split()[:3] for line in lines[1:-2]] == [
+        ["CY2-1", "C(1,1,1,1)", "2"], ["CY3-1", "C(1,1,1,2)", "3"], ["CY3-2", "C(1,2,1,1)", "3"],
+    ]
+    assert lines[-2] == "3 classes match."
+    assert lines[-1] == "The catalog is complete up to area 16."
+    beyond = invoke("find", "processes = 3 and area < 40", "--db", db, "--count")
+    assert beyond.exit_code == 0
+    assert "Warning: the query reaches area 39" in beyond.stderr
+    assert "zoo build --max-area 39" in beyond.stderr
+
+
+def test_find_by_seed_name(db: str) -> None:
+    result = invoke("find", "--seed", "factory", "--db", db, "--format", "json")
+    objects = json.loads(result.stdout)
+    assert {o["seeds"][0]["name"] for o in objects} == {
+        "factory-loop-3-carts-1-bay", "factory-loop-2-tracked-carts-2-bays",
+        "factory-loop-4-carts-12-bays",
+    }
+
+
+def test_bad_query_is_one_error_line_with_a_caret(db: str) -> None:
+    result = invoke("find", "procesess = 3", "--db", db)
+    assert result.exit_code == 1
+    lines = result.stderr.splitlines()
+    assert lines[0].startswith("Error: Unknown field 'procesess' (did you mean 'processes'?)")
+    assert lines[1:] == ["procesess = 3", "^"]
+
+
+def test_find_builds_the_default_catalog_when_there_is_none(
+    tmp_path: Path, monkeypatch: pytest.MonkeyPatch
+) -> None:
+    import zoo.catalog
+
+    monkeypatch.setattr(zoo.catalog, "DEFAULT_MAX_AREA", 6)  # the real default is 100
+    location = tmp_path / "first.sqlite3"
+    monkeypatch.setenv("ZOO_CATALOG", str(location))
+    result = invoke("find", "processes = 3 and area < 100", "--count")
+    assert result.exit_code == 0, result.output
+    # processes = gcd(beta, delta) = 3 needs 3 | beta and 3 | delta: in area <= 6 only
+    # C(1,3,1,3) (with its swap C(3,1,3,1)), theory.md §7.
+    assert result.stdout == "1\n"
+    assert "No catalog at" in result.stderr and "building areas 1..6" in result.stderr
+    assert "Warning: the query reaches area 99" in result.stderr
+    assert location.is_file()
+    again = invoke("find", "processes = 3 and area < 100", "--count")
+    assert "No catalog" not in again.stderr and again.stdout == "1\n"
+
+
+def test_show_class_entry_json(db: str) -> None:
+    result = invoke("show", "CY8-8", "--db", db, "--format", "json")
+    assert result.exit_code == 0, result.output
+    entry = json.loads(result.stdout)
+    assert entry["id"] == "CY8-8" and entry["label"] == "C(2,2,1,3)"
+    assert entry["members"] == ["C(2,2,1,3)", "C(2,2,2,2)", "C(2,2,3,1)"]
+    assert [r["label"] for r in entry["readings"]] == ["C(2,2,1,3)", "C(2,2,2,2)"]
+    assert (entry["loop"], entry["states"], entry["state_arcs"]) == (4, 12, 16)  # theory.md §11
+    assert entry["frame"]["id"] == entry["frame_id"]
+    assert entry["frame"]["other_classes"]
+    assert entry["seeds"][0]["name"] == "factory-loop-2-tracked-carts-2-bays"
+    assert "CY8-8" in entry["citation"] and entry["fingerprint"] in entry["citation"]
+
+
+def test_show_class_and_frame_tables(db: str) -> None:
+    result = invoke("show", "CY8-8", "--db", db)
+    assert result.exit_code == 0, result.output
+    out = result.stdout
+    assert out.startswith("CY8-8  C(2,2,1,3)  (area 8)\n")
+    for text in ("Members (3): C(2,2,1,3), C(2,2,2,2), C(2,2,3,1)", "Readings", "Frame FR8-",
+                 "factory-loop-2-tracked-carts-2-bays", "Cite as:"):
+        assert text in out
+    frame = invoke("show", "FR8-5", "--db", db)
+    assert frame.exit_code == 0, frame.output
+    assert "Classes on this frame" in frame.stdout and "CY8-8" in frame.stdout
+
+
+def test_show_unknown_identifier(db: str) -> None:
+    result = invoke("show", "CY8-99", "--db", db)
+    assert result.exit_code == 1
+    assert result.stderr.startswith("Error: CY8-99 does not exist: area 8 has 13 classes")
+
+
+def test_stats_json_and_plots(db: str, tmp_path: Path) -> None:
+    result = invoke("stats", "--db", db, "--format", "json")
+    rows = json.loads(result.stdout)
+    assert [r["area"] for r in rows] == list(range(1, 17))
+    assert set(rows[0]) == {"area", "parameter_sets", "readings", "classes", "frames"}
+    assert sum(r["parameter_sets"] for r in rows) == cumulative_parameter_set_count(16)
+    # Area 8: 37 parameter sets (OEIS A055507, n = 7); the other counts as in test_classify.
+    assert rows[7] == {"area": 8, "parameter_sets": 37, "readings": 24, "classes": 13, "frames": 7}
+    png, svg = tmp_path / "s.png", tmp_path / "s.svg"
+    assert invoke("stats", "--db", db, "--plot", str(png)).exit_code == 0
+    assert png.read_bytes().startswith(b"\x89PNG")
+    assert invoke("stats", "--db", db, "--plot", str(svg)).exit_code == 0
+    assert b"<svg" in svg.read_bytes()[:500]
+    bad = invoke("stats", "--db", db, "--plot", str(tmp_path / "s.gif"))
+    assert bad.exit_code == 1 and "write to a .png or .svg file" in bad.stderr
+
+
+def test_stats_table_total(db: str) -> None:
+    result = invoke("stats", "--db", db)
+    assert result.exit_code == 0
+    total = result.stdout.splitlines()[-2].split()
+    assert total[0] == "total" and total[1] == f"{cumulative_parameter_set_count(16):,}"
+
+
+def test_migrate_creates_then_reports_current(tmp_path: Path) -> None:
+    location = str(tmp_path / "m.sqlite3")
+    first = invoke("migrate", "--db", location)
+    assert first.exit_code == 0 and "schema revision none -> " in first.stdout
+    second = invoke("migrate", "--db", location)
+    assert second.exit_code == 0 and "is current; nothing to do" in second.stdout
+
+
+def test_show_without_catalog_says_how_to_build(tmp_path: Path) -> None:
+    result = invoke("show", "CY16-3", "--db", str(tmp_path / "none.sqlite3"))
+    assert result.exit_code == 1 and "zoo build" in result.stderr
+
+
+@pytest.mark.parametrize("command", ["build", "find", "stats", "migrate"])
+def test_every_command_has_help(command: str) -> None:
+    result = invoke(command, "--help")
+    assert result.exit_code == 0 and "Example:" in result.stdout

@@ -1,0 +1,332 @@
+"""``zoo show`` and ``zoo compare``: exact output for errors, the JSON interface, help texts.
+
+Values are checked against theory.md (§2.3, §5.1, §10, §11); error messages are pinned in full
+because a researcher reads them. Most tests use typer's runner; a few run the installed
+console script, which is what users run, to prove that errors end in one line and status 1.
+"""
+
+from __future__ import annotations
+
+import json
+import subprocess
+import sys
+from math import comb
+from pathlib import Path
+
+import pytest
+import typer.main
+from typer.testing import CliRunner
+
+from zoo import algebra
+from zoo.cli import app
+
+runner = CliRunner()
+ZOO = Path(sys.executable).with_name("zoo")
+
+REQUIRED_SHOW_KEYS = {  # issue 2 §7: other tools read these names
+    "params", "area", "places", "tokens", "loop", "forward_cycles", "backward_cycles",
+    "processes", "regular", "states", "state_arcs", "enabled", "semi_enabled", "slowness",
+    "cycle_time", "group", "lattice_key", "iteration", "automorphisms", "net_automorphisms",
+    "fingerprint", "net_fingerprint", "id",
+}
+
+
+def show_json(*args: str) -> dict:  # type: ignore[type-arg]
+    result = runner.invoke(app, ["show", *args, "--format", "json"])
+    assert result.exit_code == 0, result.output
+    return json.loads(result.stdout)  # type: ignore[no-any-return]
+
+
+# --- help -----------------------------------------------------------------------------------------
+
+
+def test_every_command_has_help_text() -> None:
+    group = typer.main.get_command(app)
+    commands = group.commands  # type: ignore[attr-defined]
+    assert {"show", "compare", "version"} <= set(commands)
+    for name, command in commands.items():
+        assert (command.help or "").strip(), f"zoo {name} has no help text"
+        result = runner.invoke(app, [name, "--help"])
+        assert result.exit_code == 0, name
+        assert "Usage:" in result.stdout
+
+
+@pytest.mark.parametrize("command", ["show", "compare"])
+def test_help_mentions_options(command: str) -> None:
+    result = runner.invoke(app, [command, "--help"], env={"COLUMNS": "200"})
+    assert result.exit_code == 0
+    for option in ("--format", "--db", "table", "json"):
+        assert option in result.stdout
+
+
+# --- zoo show: values -----------------------------------------------------------------------------
+
+
+def test_show_json_c4223() -> None:
+    report = show_json("4,2,2,3")
+    assert REQUIRED_SHOW_KEYS <= set(report)
+    # theory.md §11 table row C(4,2,2,3) [VERIFIED]
+    assert report["params"] == {"alpha": 4, "beta": 2, "gamma": 2, "delta": 3}
+    assert report["label"] == "C(4,2,2,3)"
+    assert report["area"] == 16 and report["places"] == 32 and report["tokens"] == 6
+    assert report["loop"] == 5
+    assert report["forward_cycles"] == {"count": 1, "length": 16, "tokens": 2}
+    assert report["backward_cycles"] == {"count": 2, "length": 8, "tokens": 2}
+    assert report["processes"] == 1 and report["regular"] is False
+    assert report["states"] == 40 and report["state_arcs"] == 64
+    assert report["enabled"] == 2 and report["semi_enabled"] == 2
+    # theory.md §3.1 example
+    assert report["enabled_transitions"] == ["t_1_0", "t_3_-1"]
+    assert report["semi_enabled_transitions"] == ["t_2_0", "t_4_-1"]
+    assert report["slowness"] == "1/3" and report["slowness_float"] == pytest.approx(1 / 3)
+    assert report["cycle_time"] == "8/1" and report["cycle_time_float"] == 8.0
+    assert report["group"] == [1, 16]
+    assert report["lattice_key"] == [16, 1, 6]
+    assert report["normal_form_beta_delta"] == "C(10,1,6,1)"
+    assert report["normal_form_alpha_gamma"] == "C(2,5,2,3)"
+    assert report["swap"] == "C(2,4,3,2)"
+    assert report["iteration"] == 1
+    # theory.md §10: the typed system has gcd(alpha, beta) = 2 automorphisms, the typed net A
+    assert report["automorphisms"] == 2 and report["net_automorphisms"] == 16
+    assert report["fingerprint"].startswith("v1:") and len(report["fingerprint"]) == 67
+    assert report["net_fingerprint"].startswith("v1:")
+    assert report["id"] is None  # no catalog in the test's data directory
+    for key in ("area", "loop", "states", "automorphisms"):
+        assert type(report[key]) is int
+
+
+def test_show_forms_agree() -> None:
+    # issue 2: 4,2,2,3, '4 2 2 3' (one argument or four) and C(4,2,2,3) are the same input.
+    reference = show_json("4,2,2,3")
+    assert show_json("4 2 2 3") == reference
+    assert show_json("4", "2", "2", "3") == reference
+    assert show_json("C(4,2,2,3)") == reference
+
+
+def test_swap_gives_the_same_class_level_values() -> None:
+    first, second = show_json("4,2,2,3"), show_json("2,4,3,2")
+    for key in ("area", "loop", "states", "state_arcs", "cycle_time", "group", "iteration",
+                "automorphisms", "net_automorphisms", "fingerprint", "net_fingerprint"):
+        assert first[key] == second[key], key
+    assert first["forward_cycles"] == second["backward_cycles"]
+    assert first["slowness"] == "1/3" and second["slowness"] == "-1/3"
+
+
+def test_show_json_big_integers_are_exact() -> None:
+    # C(100,100,1,1): |RG| = C(200,100) (theory.md §10), about 9e58, far beyond 64 bits.
+    result = runner.invoke(app, ["show", "100,100,1,1", "--format", "json"])
+    assert result.exit_code == 0
+    assert f'"states": {comb(200, 100)},' in result.stdout
+    assert json.loads(result.stdout)["states"] == comb(200, 100)
+
+
+def test_show_above_the_net_limit() -> None:
+    from zoo.net import NET_LIMIT
+
+    assert NET_LIMIT == 20_000
+    result = runner.invoke(app, ["show", "10001,10000,1,1", "--format", "json"])
+    assert result.exit_code == 0
+    assert result.stderr == (
+        "Note: C(10001,10000,1,1) has area 20,001, above the explicit-net limit 20,000: "
+        "automorphisms, fingerprints and transition names are not computed (null); "
+        "every algebraic invariant is exact\n"
+    )
+    report = json.loads(result.stdout)
+    for key in ("automorphisms", "net_automorphisms", "fingerprint", "net_fingerprint",
+                "enabled_transitions"):
+        assert report[key] is None
+    assert report["loop"] == 2 and report["enabled"] == 10000
+    assert report["states"] == 20001 * comb(20001, 10000) // 20001
+    # the table also works, with the long numbers shortened
+    table = runner.invoke(app, ["show", "10001,10000,1,1"], env={"COLUMNS": "200"})
+    assert table.exit_code == 0
+    assert "4.49098078e6018 (6,019 digits; exact in --format json)" in table.stdout
+
+
+def test_show_table() -> None:
+    result = runner.invoke(app, ["show", "1,10,1,5"], env={"COLUMNS": "120"})
+    assert result.exit_code == 0
+    lines = result.stdout.splitlines()
+    assert lines[0].strip() == "C(1,10,1,5)"
+
+    def row(name: str) -> list[str]:
+        line = next(line for line in lines if line.startswith(f"│ {name} "))
+        return [cell.strip() for cell in line.strip("│").split("│")]
+
+    # theory.md §11 row C(1,10,1,5): cyc = 3 although cyc_1 = 6; 15 states; w = -9/11
+    assert row("loop (shortest cycle)") == [
+        "loop (shortest cycle)", "3 (vector (3,0), 2 tokens)", "lattice search; cyc₁ = 6"]
+    assert row("reachable states")[1] == "15"
+    assert row("slowness")[1] == "-9/11"
+    assert row("forward cycles")[1] == "5 × 3 (2 tokens each)"
+    # the representative of level 1 in the parallelogram: L(1,-9) = 10 - 9 = 1 (theory.md §3.1)
+    assert row("enabled at M0")[1] == "1: t_1_-9"
+
+
+# --- zoo show: errors -----------------------------------------------------------------------------
+
+SHOW_ERRORS = [
+    (["0,1,1,1"], "Error: alpha must be a positive integer, got 0; every cycloid parameter is "
+                  "at least 1\n"),
+    (["-1,2,2,3"], "Error: alpha must be a positive integer, got -1; every cycloid parameter is "
+                   "at least 1\n"),
+    (["4,2,2"], "Error: a parameter set has four values (alpha, beta, gamma, delta), got 3 in "
+                "'4,2,2'; write it as 4,2,2,3\n"),
+    (["4", "2", "2", "3", "1"], "Error: a parameter set has four values (alpha, beta, gamma, "
+                                "delta), got 5 in '4 2 2 3 1'; write it as 4,2,2,3\n"),
+    (["4,2,2.5,3"], "Error: gamma must be a whole number, got '2.5' in '4,2,2.5,3'; write four "
+                    "positive integers such as 4,2,2,3\n"),
+    (["C(4,2,2,3"], "Error: cannot read parameter set 'C(4,2,2,3'; write it as 4,2,2,3 or "
+                    "'4 2 2 3' or C(4,2,2,3)\n"),
+    (["400,1,1,300"], "Error: area alpha*delta + beta*gamma = 120,001 of C(400,1,1,300) is over "
+                      "the limit 100,000; choose smaller parameters\n"),
+]
+
+
+@pytest.mark.parametrize(("args", "stderr"), SHOW_ERRORS, ids=lambda v: str(v)[:20])
+def test_show_errors(args: list[str], stderr: str) -> None:
+    result = runner.invoke(app, ["show", *args])
+    assert result.exit_code == 1
+    assert result.stderr == stderr
+    assert result.stdout == ""
+
+
+def test_show_unknown_identifier_in_missing_catalog(tmp_path: Path) -> None:
+    missing = tmp_path / "none.sqlite3"
+    result = runner.invoke(app, ["show", "CY16-3", "--db", str(missing)])
+    assert result.exit_code == 1
+    assert result.stderr.startswith("Error: ") and result.stderr.count("\n") == 1
+    assert not missing.exists()  # never builds a catalog
+
+
+def test_unknown_option_is_a_usage_error() -> None:
+    # Negative numbers must reach the parser (above), but other dashes are options.
+    result = runner.invoke(app, ["show", "4,2,2,3", "--bogus"])
+    assert (result.exit_code, result.stderr) == (
+        2, "Error: no such option: --bogus; see zoo show --help\n")
+    result = runner.invoke(app, ["compare", "4,2,2,3", "-x"])
+    assert (result.exit_code, result.stderr) == (
+        2, "Error: no such option: -x; see zoo compare --help\n")
+
+
+def test_bad_format_is_a_usage_error() -> None:
+    result = runner.invoke(app, ["show", "4,2,2,3", "--format", "xml"])
+    assert result.exit_code == 2
+    assert "xml" in result.stderr and "--format" in result.stderr
+
+
+@pytest.mark.parametrize(
+    ("args", "stderr"),
+    [
+        (["show", "4,2,x,3"], "Error: gamma must be a whole number, got 'x' in '4,2,x,3'; write "
+                              "four positive integers such as 4,2,2,3\n"),
+        (["compare", "4,2,2,3", "0,0,0,0"], "Error: alpha must be a positive integer, got 0; "
+                                            "every cycloid parameter is at least 1\n"),
+    ],
+)
+def test_console_script_errors(args: list[str], stderr: str) -> None:
+    # What a user sees from the installed command: one line, status 1, no traceback.
+    result = subprocess.run([str(ZOO), *args], capture_output=True, text=True, check=False)
+    assert (result.returncode, result.stderr, result.stdout) == (1, stderr, "")
+
+
+# --- zoo show with a catalog ----------------------------------------------------------------------
+
+
+def test_show_with_catalog(tmp_path: Path) -> None:
+    db = str(tmp_path / "catalog.sqlite3")
+    built = runner.invoke(app, ["build", "--max-area", "16", "--jobs", "1", "--db", db])
+    assert built.exit_code == 0, built.output
+    report = show_json("4,2,2,3", "--db", db)
+    class_id = report["id"]
+    assert class_id is not None and class_id.startswith("CY16-")
+    # every member of the class resolves to the same identifier (theory.md §5.1 swap)
+    assert show_json("2,4,3,2", "--db", db)["id"] == class_id
+    entry = runner.invoke(app, ["show", class_id, "--db", db])
+    assert entry.exit_code == 0, entry.output
+    assert class_id in entry.stdout
+    # a parameter set beyond the catalog's areas simply has no identifier
+    assert show_json("4,2,2,5", "--db", db)["id"] is None
+
+
+# --- zoo compare ----------------------------------------------------------------------------------
+
+
+def compare_json(first: str, second: str) -> dict:  # type: ignore[type-arg]
+    result = runner.invoke(app, ["compare", first, second, "--format", "json"])
+    assert result.exit_code == 0, result.output
+    return json.loads(result.stdout)  # type: ignore[no-any-return]
+
+
+@pytest.mark.parametrize(
+    ("first", "second", "reading", "same_class", "frame"),
+    [
+        ("4,2,2,3", "4,2,2,3", True, True, True),
+        ("4,2,2,3", "4,2,6,1", True, True, True),  # delta-step keeps net and M0, theory.md §5.2
+        ("4,2,2,3", "2,4,3,2", False, True, True),  # swap, theory.md §5.1
+        ("4,2,2,3", "10,1,6,1", False, False, True),  # NF_betadelta: same net, other marking
+        ("2,2,1,3", "2,2,2,2", False, True, True),  # exceptional family, theory.md §5.1
+        ("2,2,1,5", "2,2,2,4", False, True, True),
+        ("1,5,1,3", "2,2,2,2", False, False, True),  # same net only, theory.md §5.1
+        ("3,2,1,1", "4,1,1,1", False, False, True),  # same net, different systems, §11
+        ("3,3,1,3", "3,3,2,2", False, False, False),  # same |RG|, not isomorphic, §10
+        ("4,2,2,3", "1,1,1,1", False, False, False),
+    ],
+)
+def test_compare(first: str, second: str, reading: bool, same_class: bool, frame: bool) -> None:
+    report = compare_json(first, second)
+    assert (report["same_reading"], report["same_class"], report["same_frame"]) == (
+        reading, same_class, frame)
+    assert report["evidence"] == {"same_reading": "algebra", "same_class": "both",
+                                  "same_frame": "both"}
+    assert report["disagreements"] == []
+    assert report["nauty"] == {"same_class": same_class, "same_frame": frame}
+
+
+def test_compare_table() -> None:
+    result = runner.invoke(app, ["compare", "4,2,2,3", "2,4,3,2"], env={"COLUMNS": "160"})
+    assert result.exit_code == 0
+    lines = result.stdout.splitlines()
+    assert lines[0].strip() == "C(4,2,2,3) vs C(2,4,3,2)"
+    cells = {line.split("│")[1].strip(): [c.strip() for c in line.split("│")[2:4]]
+             for line in lines if line.startswith("│ same")}
+    assert cells == {"same reading": ["no", "algebra"], "same class": ["yes", "both"],
+                     "same frame": ["yes", "both"]}
+
+
+def test_compare_above_the_net_limit_uses_algebra() -> None:
+    result = runner.invoke(
+        app, ["compare", "10001,10000,1,1", "10000,10001,1,1", "--format", "json"])
+    assert result.exit_code == 0
+    report = json.loads(result.stdout)
+    assert report["same_class"] is True and report["same_frame"] is True
+    assert report["evidence"] == {"same_reading": "algebra", "same_class": "algebra",
+                                  "same_frame": "algebra"}
+    assert report["fingerprints"] == [None, None]
+    assert result.stderr.count("Note: ") == 2
+
+
+def test_compare_reports_disagreement_loudly(monkeypatch: pytest.MonkeyPatch) -> None:
+    # A deliberately broken algebraic class key must be caught by the nauty cross-check.
+    monkeypatch.setattr(algebra, "class_key", lambda p: (p.alpha, p.beta, p.gamma, p.delta))
+    result = runner.invoke(app, ["compare", "4,2,2,3", "2,4,3,2", "--format", "json"])
+    assert result.exit_code == 1
+    report = json.loads(result.stdout)
+    assert report["same_class"] is True  # nauty decides
+    assert report["evidence"]["same_class"] == "nauty"
+    assert report["disagreements"] == ["same_class"]
+    assert result.stderr == (
+        "Error: algebra and nauty disagree for C(4,2,2,3) and C(2,4,3,2) (same_class: algebra "
+        "says False, nauty says True); this is a bug in zoo, please report it with this "
+        "command line\n"
+    )
+
+
+def test_compare_errors() -> None:
+    result = runner.invoke(app, ["compare", "4,2,2,3"])
+    assert result.exit_code == 2
+    assert "Missing argument 'P2'" in result.stderr
+    result = runner.invoke(app, ["compare", "4,2,2,3", "4;2;2;3"])
+    assert result.exit_code == 1
+    assert result.stderr == ("Error: a parameter set has four values (alpha, beta, gamma, delta), "
+                             "got 1 in '4;2;2;3'; write it as 4,2,2,3\n")

@@ -1,0 +1,432 @@
+"""Where the catalog lives, how to open it, and which schema revision it has.
+
+A catalog is a SQLite file (the default, in the user's data directory) or a PostgreSQL database
+given by a SQLAlchemy URL (architecture.md, "Catalog location"). The schema is created and
+upgraded only by the Alembic revisions shipped as the package ``zoo.migrations``, driven here
+through a programmatic Alembic configuration, so an installed zoo needs no ``alembic.ini``.
+
+SQLite connections are set up for the catalog's way of working (design.md §2, §5): foreign
+keys on (SQLite leaves them off per connection), WAL journal so that a reader can query while a
+build writes one transaction per area, a busy timeout instead of an immediate "database is
+locked", and explicit ``BEGIN`` so that migrations run as real transactions.
+"""
+
+from __future__ import annotations
+
+import os
+import shlex
+import sqlite3
+from dataclasses import dataclass
+from importlib.resources import files
+from pathlib import Path
+from typing import Any
+
+import platformdirs
+from alembic import command
+from alembic.config import Config
+from alembic.runtime.migration import MigrationContext
+from alembic.script import ScriptDirectory
+from sqlalchemy import Connection, Engine, create_engine, event, inspect, text
+from sqlalchemy.engine import URL, make_url
+from sqlalchemy.exc import ArgumentError, DBAPIError, NoSuchModuleError
+
+from zoo.errors import CatalogError
+from zoo.storage.models import sortable_key
+
+#: The environment variable naming the catalog when ``--db`` is not given.
+CATALOG_ENV_VAR = "ZOO_CATALOG"
+#: File name of the default catalog inside ``platformdirs.user_data_dir("zoo")``.
+DEFAULT_FILE_NAME = "catalog.sqlite3"
+#: How long a SQLite connection waits for another writer before giving up, in milliseconds.
+SQLITE_BUSY_TIMEOUT_MS = 30_000
+
+_SUPPORTED_BACKENDS = ("sqlite", "postgresql")
+#: PostgreSQL advisory lock id held while zoo migrates a catalog ("zoo" in ASCII, then 1).
+_LOCK_KEY = 0x7A6F6F01
+
+
+@dataclass(frozen=True)
+class SchemaChange:
+    """The schema revisions of a catalog before and after ``upgrade`` or ``downgrade``."""
+
+    before: str | None
+    after: str | None
+
+    @property
+    def changed(self) -> bool:
+        return self.before != self.after
+
+
+# --- location ------------------------------------------------------------------------------
+
+
+def default_catalog_path() -> Path:
+    """The default catalog file: ``platformdirs.user_data_dir("zoo") / "catalog.sqlite3"``."""
+    return Path(platformdirs.user_data_dir("zoo")) / DEFAULT_FILE_NAME
+
+
+def resolve_location(location: str | None = None) -> str:
+    """The SQLAlchemy URL of the catalog: ``--db`` value, else ``$ZOO_CATALOG``, else the default.
+
+    A value containing ``://`` is a SQLAlchemy URL (``postgresql://`` is read as
+    ``postgresql+psycopg://``, the driver zoo ships with); anything else is a file path, with
+    ``~`` expanded. The parent directory of a SQLite file is created.
+
+    >>> resolve_location("postgresql://postgres@127.0.0.1/zoo")
+    'postgresql+psycopg://postgres@127.0.0.1/zoo'
+    """
+    value = (location or "").strip() or os.environ.get(CATALOG_ENV_VAR, "").strip()
+    if "://" in value:
+        url = _normalised_url(value)
+        file = _sqlite_file(url)
+        if file is not None:
+            _create_parent(file, value)
+        return url.render_as_string(hide_password=False)
+    path = Path(value).expanduser() if value else default_catalog_path()
+    if path.is_dir():
+        raise CatalogError(
+            f"catalog location {value or str(path)!r} is a directory; give a file path such as "
+            f"{path / DEFAULT_FILE_NAME}"
+        )
+    path = path.absolute()
+    _create_parent(path, value or str(path))
+    return URL.create("sqlite", database=str(path)).render_as_string(hide_password=False)
+
+
+def _normalised_url(value: str) -> URL:
+    try:
+        url = make_url(value)
+    except ArgumentError as exc:
+        raise CatalogError(
+            f"cannot read database URL {value!r}: {exc}; write it as "
+            "postgresql+psycopg://USER@HOST:PORT/DATABASE or give a file path"
+        ) from None
+    if url.drivername in ("postgresql", "postgres"):
+        url = url.set(drivername="postgresql+psycopg")
+    backend = url.get_backend_name()
+    if backend not in _SUPPORTED_BACKENDS:
+        raise CatalogError(
+            f"database URL {_display_url(url)!r} uses {backend}; zoo stores catalogs in SQLite "
+            "(a file path) or PostgreSQL (postgresql+psycopg://...)"
+        )
+    return url
+
+
+def _sqlite_file(url: URL) -> Path | None:
+    """The file of a SQLite URL (also of a ``file:`` URI database), None for memory or others."""
+    if url.get_backend_name() != "sqlite":
+        return None
+    database = url.database or ""
+    if database.startswith("file:"):
+        database = database[len("file:") :].split("?", 1)[0]
+        if database.startswith("///"):
+            database = database[2:]
+    if database in ("", ":memory:"):
+        return None
+    return Path(database).expanduser()
+
+
+def _create_parent(path: Path, shown: str) -> None:
+    try:
+        path.parent.mkdir(parents=True, exist_ok=True)
+    except OSError as exc:
+        raise CatalogError(
+            f"cannot create the directory {path.parent} for catalog {shown!r}: {exc.strerror}; "
+            "choose another location with --db or ZOO_CATALOG"
+        ) from None
+
+
+def _display_url(url: URL) -> str:
+    return url.render_as_string(hide_password=True)
+
+
+def display_location(url: str | URL) -> str:
+    """How to name a catalog to the user: the file path for SQLite, else the URL sans password."""
+    parsed = make_url(url) if isinstance(url, str) else url
+    file = _sqlite_file(parsed)
+    if file is not None and not (parsed.database or "").startswith("file:"):
+        return str(file)
+    return _display_url(parsed)
+
+
+def migrate_command(url: str | URL) -> str:
+    """The exact shell command that upgrades the catalog at ``url``: ``zoo migrate --db ...``."""
+    return f"zoo migrate --db {shlex.quote(display_location(url))}"
+
+
+# --- engines -------------------------------------------------------------------------------
+
+
+def open_engine(url: str, *, migrating: bool = False) -> Engine:
+    """An engine for the catalog at ``url`` (from ``resolve_location``), checked to connect.
+
+    SQLite: foreign keys on per connection, WAL journal, busy timeout, explicit BEGIN (module
+    docstring). ``migrating=True`` is for schema migrations only: foreign keys off, because
+    rebuilding a table in SQLite batch mode drops it, which live foreign keys would refuse or
+    cascade (``upgrade`` checks every key before committing instead), and ``BEGIN IMMEDIATE``,
+    so that the migration holds the write lock from its first statement. Raises
+    ``CatalogError`` when the database cannot be reached.
+    """
+    parsed = _normalised_url(url)
+    try:
+        if parsed.get_backend_name() == "sqlite":
+            engine = create_engine(parsed, connect_args={"timeout": SQLITE_BUSY_TIMEOUT_MS / 1000})
+            _configure_sqlite(engine, migrating=migrating)
+        else:
+            engine = create_engine(parsed, pool_pre_ping=True)
+    except (NoSuchModuleError, ModuleNotFoundError) as exc:
+        raise CatalogError(
+            f"no database driver for {_display_url(parsed)!r} ({exc}); use "
+            "postgresql+psycopg://... (psycopg is installed with zoo)"
+        ) from None
+    try:
+        with engine.connect():
+            pass
+    except DBAPIError as exc:
+        engine.dispose()
+        raise CatalogError(
+            f"cannot open catalog database {display_location(parsed)!r}: {_first_line(exc)}; "
+            "check the path or URL given by --db or ZOO_CATALOG"
+        ) from None
+    return engine
+
+
+def _configure_sqlite(engine: Engine, *, migrating: bool) -> None:
+    begin = "BEGIN IMMEDIATE" if migrating else "BEGIN"
+
+    @event.listens_for(engine, "connect")
+    def _on_connect(dbapi_connection: Any, _record: Any) -> None:
+        # Autocommit at the driver level: pysqlite's own implicit BEGIN skips DDL, so we emit
+        # BEGIN ourselves (below) and every transaction, migrations included, is a real one.
+        dbapi_connection.isolation_level = None
+        cursor = dbapi_connection.cursor()
+        try:
+            cursor.execute(f"PRAGMA foreign_keys = {'OFF' if migrating else 'ON'}")
+            cursor.execute(f"PRAGMA busy_timeout = {SQLITE_BUSY_TIMEOUT_MS}")
+            try:
+                cursor.execute("PRAGMA journal_mode = WAL")
+            except sqlite3.OperationalError:
+                # A read-only catalog (file permissions or ?mode=ro) keeps its journal mode;
+                # it is only read, so no writer needs to be let past.
+                pass
+        finally:
+            cursor.close()
+
+    @event.listens_for(engine, "begin")
+    def _on_begin(connection: Connection) -> None:
+        connection.exec_driver_sql(begin)
+
+
+def _first_line(exc: BaseException) -> str:
+    original = getattr(exc, "orig", None) or exc
+    text = str(original).strip().splitlines()
+    return text[0] if text else type(original).__name__
+
+
+# --- revisions -----------------------------------------------------------------------------
+
+
+def migrations_directory() -> Path:
+    """The directory of the installed package ``zoo.migrations`` (Alembic script location)."""
+    return Path(str(files("zoo.migrations")))
+
+
+def alembic_config(url: str, connection: Connection | None = None) -> Config:
+    """A programmatic Alembic configuration for ``url``; ``connection`` is reused if given."""
+    config = Config()
+    config.set_main_option("script_location", str(migrations_directory()))
+    config.set_main_option("path_separator", "os")
+    config.set_main_option("sqlalchemy.url", url.replace("%", "%%"))
+    config.attributes["connection"] = connection
+    return config
+
+
+def _script_directory() -> ScriptDirectory:
+    return ScriptDirectory(str(migrations_directory()))
+
+
+def head_revision() -> str:
+    """The newest schema revision this zoo knows."""
+    head = _script_directory().get_current_head()
+    if head is None:  # pragma: no cover - the package always ships revisions
+        raise CatalogError("zoo.migrations holds no revisions; reinstall zoo")
+    return head
+
+
+def known_revisions() -> tuple[str, ...]:
+    """Every schema revision this zoo knows, oldest first."""
+    return tuple(reversed([s.revision for s in _script_directory().walk_revisions()]))
+
+
+def _revision_of(connection: Connection) -> str | None:
+    return MigrationContext.configure(connection).get_current_revision()
+
+
+def current_revision(engine: Engine) -> str | None:
+    """The schema revision recorded in the catalog, or None for a database without one."""
+    with engine.connect() as connection:
+        return _revision_of(connection)
+
+
+def require_current(engine: Engine) -> None:
+    """Check that the catalog's schema is the one this zoo's code expects.
+
+    Raises ``CatalogError`` naming the exact ``zoo migrate --db ...`` command when the catalog
+    is older (or has no schema yet), and asking for a newer zoo when the catalog was written by
+    one whose revision this zoo does not know.
+    """
+    current = current_revision(engine)
+    head = head_revision()
+    if current == head:
+        return
+    shown = display_location(engine.url)
+    if current is None:
+        raise CatalogError(
+            f"{shown} holds no zoo catalog schema (no schema revision recorded, this zoo needs "
+            f"{head}); create it with: {migrate_command(engine.url)}"
+        )
+    if current not in known_revisions():
+        raise CatalogError(_newer_message(shown, current, head))
+    raise CatalogError(
+        f"catalog {shown} has schema revision {current}, older than {head} which this zoo "
+        f"needs; upgrade it (no data is lost) with: {migrate_command(engine.url)}"
+    )
+
+
+def _newer_message(shown: str, current: str, head: str) -> str:
+    from zoo import __version__
+
+    return (
+        f"catalog {shown} has schema revision {current}, which zoo {__version__} does not know "
+        f"(its newest is {head}); it was written by a newer zoo: upgrade zoo "
+        "(pip install -U zoo) to use it"
+    )
+
+
+def upgrade(url: str, revision: str = "head") -> SchemaChange:
+    """Create or upgrade the catalog schema at ``url`` to ``revision`` (default: the newest).
+
+    Safe on an up-to-date catalog (nothing is done) and on a catalog written by a newer zoo
+    (refused with ``CatalogError``). All revisions run in one transaction, so a failure leaves
+    the catalog as it was. Refuses a non-empty database that is not a zoo catalog.
+    """
+    return _migrate(url, revision, downgrading=False)
+
+
+def downgrade(url: str, revision: str) -> SchemaChange:
+    """Take the catalog schema at ``url`` back to ``revision`` (``"base"`` drops every table).
+
+    For developers testing a revision; a downgrade may drop data that only newer revisions hold.
+    """
+    return _migrate(url, revision, downgrading=True)
+
+
+def _migrate(url: str, revision: str, *, downgrading: bool) -> SchemaChange:
+    engine = open_engine(url, migrating=True)
+    shown = display_location(engine.url)
+    try:
+        with engine.connect() as connection:
+            if connection.dialect.name == "postgresql":
+                # One migrating zoo at a time per database; released at commit or rollback.
+                connection.execute(text("SELECT pg_advisory_xact_lock(:key)"), {"key": _LOCK_KEY})
+            before = _revision_of(connection)
+            if before is not None and before not in known_revisions():
+                raise CatalogError(_newer_message(shown, before, head_revision()))
+            if before is None and not downgrading:
+                _refuse_foreign_tables(connection, shown)
+            target = head_revision() if revision == "head" else revision
+            if target != "base" and target not in known_revisions():
+                raise CatalogError(
+                    f"schema revision {revision!r} is unknown; known revisions are "
+                    f"{', '.join(known_revisions())}"
+                )
+            if before == (None if target == "base" else target):
+                return SchemaChange(before, before)
+            config = alembic_config(url, connection)
+            if downgrading:
+                command.downgrade(config, target)
+            else:
+                command.upgrade(config, target)
+            _check_foreign_keys(connection, shown)
+            after = _revision_of(connection)
+            connection.commit()
+    except CatalogError:
+        raise
+    except DBAPIError as exc:
+        raise CatalogError(
+            f"migrating catalog {shown} failed, nothing was changed: {_first_line(exc)}"
+        ) from None
+    except Exception as exc:  # a revision's data step met data it cannot handle
+        raise CatalogError(
+            f"migrating catalog {shown} failed, nothing was changed: "
+            f"{type(exc).__name__}: {_first_line(exc)}; please report this with the catalog"
+        ) from exc
+    finally:
+        engine.dispose()
+    return SchemaChange(before, after)
+
+
+def _refuse_foreign_tables(connection: Connection, shown: str) -> None:
+    tables = sorted(set(inspect(connection).get_table_names()) - {"alembic_version"})
+    if tables:
+        listed = ", ".join(tables[:5]) + (", ..." if len(tables) > 5 else "")
+        raise CatalogError(
+            f"{shown} already holds tables ({listed}) but no zoo schema revision, so it is not a "
+            "zoo catalog; give an empty database or a new file with --db"
+        )
+
+
+def _check_foreign_keys(connection: Connection, shown: str) -> None:
+    # Migrations on SQLite run with foreign keys off (see open_engine); check them all before
+    # committing so that a migration can never leave dangling references behind.
+    if connection.dialect.name != "sqlite":
+        return
+    problems = connection.exec_driver_sql("PRAGMA foreign_key_check").fetchall()
+    if problems:
+        table, rowid, parent = problems[0][0], problems[0][1], problems[0][2]
+        connection.rollback()
+        raise CatalogError(
+            f"migrating catalog {shown} would leave {len(problems)} broken reference(s), first "
+            f"in table {table} row {rowid} to {parent}; nothing was changed, please report this"
+        )
+
+
+def catalog_exists(url: str) -> bool:
+    """Whether a catalog schema exists at ``url``; never creates a file or a table.
+
+    False for a missing SQLite file and for a reachable database without a schema revision.
+    A database that cannot be opened (server down, a file that is not a database) raises
+    ``CatalogError``: saying "no catalog" there would invite building over it.
+    """
+    parsed = _normalised_url(url)
+    if parsed.get_backend_name() == "sqlite":
+        file = _sqlite_file(parsed)
+        if file is None or not file.is_file():
+            return False
+    engine = open_engine(url)
+    try:
+        return current_revision(engine) is not None
+    finally:
+        engine.dispose()
+
+
+__all__ = [
+    "CATALOG_ENV_VAR",
+    "DEFAULT_FILE_NAME",
+    "SchemaChange",
+    "alembic_config",
+    "catalog_exists",
+    "current_revision",
+    "default_catalog_path",
+    "display_location",
+    "downgrade",
+    "head_revision",
+    "known_revisions",
+    "migrate_command",
+    "migrations_directory",
+    "open_engine",
+    "require_current",
+    "resolve_location",
+    "sortable_key",
+    "upgrade",
+]

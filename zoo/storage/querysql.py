@@ -1,0 +1,284 @@
+"""Compile query syntax trees (``zoo/query.py``) to SQLAlchemy statements over the catalog.
+
+Semantics (docs/query-language.md, "What a query matches"): the whole boolean expression is
+evaluated for each member parameter set joined with its reading and its class, and a class
+matches when at least one member satisfies it. ``compile_query`` builds
+
+* ``SELECT classes.id FROM classes WHERE <condition>`` when only class-level fields occur
+  (class-level values are the same for every member, and every class has a member);
+* otherwise ``... WHERE EXISTS (SELECT 1 FROM readings [JOIN parameter_sets] WHERE
+  readings.class_id = classes.id AND <condition>)``, joining the parameter sets only when a
+  parameter-level field occurs. Top-level class-only conjuncts stay outside the subquery,
+  where an index on the class table can serve them; that changes nothing, as they are
+  constant over the members.
+
+Every literal is a bound parameter: exact big integers become their sortable key text
+(``models.sortable_key``), fractions are compared by cross-multiplication in 64-bit integers
+(denominators in the database are positive), and integers beyond any stored value fold to a
+constant truth value (SQLite binds at most 64 bits).
+"""
+
+from __future__ import annotations
+
+import operator
+from collections.abc import Callable, Sequence
+from fractions import Fraction
+from typing import Any
+
+from sqlalchemy import (
+    BigInteger,
+    ColumnElement,
+    Float,
+    FromClause,
+    Integer,
+    Label,
+    Select,
+    String,
+    Table,
+    and_,
+    case,
+    cast,
+    exists,
+    false,
+    func,
+    literal,
+    not_,
+    or_,
+    select,
+    true,
+)
+
+from zoo.fields import Field, FieldType, Level, require_field
+from zoo.query import (
+    And,
+    BoolField,
+    Comparison,
+    Membership,
+    Node,
+    Not,
+    Or,
+    Range,
+    Value,
+    parse_field_names,
+    parse_sort_key,
+    referenced_fields,
+)
+from zoo.storage.models import (
+    ClassRecord,
+    FrameRecord,
+    ParameterSetRecord,
+    ReadingRecord,
+    sortable_key,
+)
+
+_CLASSES: Table = ClassRecord.__table__  # type: ignore[assignment]
+_FRAMES: Table = FrameRecord.__table__  # type: ignore[assignment]
+_READINGS: Table = ReadingRecord.__table__  # type: ignore[assignment]
+_PARAMETER_SETS: Table = ParameterSetRecord.__table__  # type: ignore[assignment]
+_TABLES: dict[str, Table] = {
+    "classes": _CLASSES,
+    "frames": _FRAMES,
+    "readings": _READINGS,
+    "parameter_sets": _PARAMETER_SETS,
+}
+
+#: Integer columns hold values far below this; literals beyond it fold to true or false.
+_INTEGER_LIMIT = 2**62
+
+_OPERATORS: dict[str, Callable[[Any, Any], ColumnElement[bool]]] = {
+    "=": operator.eq,
+    "!=": operator.ne,
+    "<": operator.lt,
+    "<=": operator.le,
+    ">": operator.gt,
+    ">=": operator.ge,
+}
+# Whether "column op value" holds for every stored value when the literal lies above all of
+# them, and when it lies below all of them.
+_HOLDS_BELOW_LITERAL = {"=": False, "!=": True, "<": True, "<=": True, ">": False, ">=": False}
+_HOLDS_ABOVE_LITERAL = {"=": False, "!=": True, "<": False, "<=": False, ">": True, ">=": True}
+
+
+def _column(spec: str) -> ColumnElement[Any]:
+    table, _, name = spec.partition(".")
+    return _TABLES[table].c[name]
+
+
+def _constant(value: bool) -> ColumnElement[bool]:
+    return true() if value else false()
+
+
+def _compare(field: Field, op: str, value: Value) -> ColumnElement[bool]:
+    """One comparison ``field op value`` as SQL, with the literal bound."""
+    compare = _OPERATORS[op]
+    if field.type is FieldType.BOOLEAN:
+        column = _column(field.columns[0])
+        wanted = bool(value) if op == "=" else not bool(value)
+        return column == _constant(wanted)
+    if field.type is FieldType.FRACTION:
+        fraction = Fraction(value)
+        numerator = cast(_column(field.columns[0]), BigInteger)
+        denominator = cast(_column(field.columns[1]), BigInteger)
+        # num/den op p/q  <=>  num*q op p*den, as den > 0 and q > 0: exact, no floating point.
+        return compare(numerator * fraction.denominator, denominator * fraction.numerator)
+    number = int(value)
+    if field.type is FieldType.BIG_INTEGER:
+        if number < 0:  # every stored count is >= 0, so it lies above the literal
+            return _constant(_HOLDS_ABOVE_LITERAL[op])
+        return compare(_column(field.columns[1]), sortable_key(number))
+    if number > _INTEGER_LIMIT:
+        return _constant(_HOLDS_BELOW_LITERAL[op])
+    if number < -_INTEGER_LIMIT:
+        return _constant(_HOLDS_ABOVE_LITERAL[op])
+    return compare(_column(field.columns[0]), number)
+
+
+def compile_condition(node: Node) -> ColumnElement[bool]:
+    """The SQL condition of a tree over the columns of classes, readings, parameter_sets, frames.
+
+    It is meant for one row of the member join (a parameter set with its reading and class);
+    ``compile_query`` puts it in context.
+    """
+    if isinstance(node, And):
+        return and_(*(compile_condition(o) for o in node.operands))
+    if isinstance(node, Or):
+        return or_(*(compile_condition(o) for o in node.operands))
+    if isinstance(node, Not):
+        return not_(compile_condition(node.operand))
+    field = require_field(node.field)
+    if isinstance(node, Comparison):
+        return _compare(field, node.op, node.value)
+    if isinstance(node, Range):
+        return and_(_compare(field, ">=", node.low), _compare(field, "<=", node.high))
+    if isinstance(node, Membership):
+        return or_(*(_compare(field, "=", v) for v in node.values))
+    if isinstance(node, BoolField):
+        return _compare(field, "=", True)
+    raise TypeError(f"not a query node: {node!r}")
+
+
+def _is_class_only(node: Node) -> bool:
+    return all(f.level is Level.CLASS for f in referenced_fields(node))
+
+
+def compile_query(node: Node) -> Select[Any]:
+    """``SELECT classes.id`` of the classes matching a query (see the module docstring).
+
+    The statement correlates nothing, so it can stand alone or sit inside another statement,
+    e.g. ``select(ClassRecord).where(ClassRecord.id.in_(compile_query(tree)))``.
+    """
+    tables = frozenset().union(*(f.tables for f in referenced_fields(node)))
+    source: FromClause = _CLASSES
+    if "frames" in tables:
+        source = _CLASSES.join(_FRAMES, _CLASSES.c.frame_id == _FRAMES.c.id)
+    statement = select(_CLASSES.c.id).select_from(source)
+    if _is_class_only(node):
+        return statement.where(compile_condition(node)).correlate(None)
+    operands = node.operands if isinstance(node, And) else (node,)
+    outside = [o for o in operands if _is_class_only(o)]
+    inside = [o for o in operands if not _is_class_only(o)]
+    member_condition = and_(*(compile_condition(o) for o in inside))
+    members: FromClause
+    if "parameter_sets" in tables:
+        members = _PARAMETER_SETS.join(_READINGS, _PARAMETER_SETS.c.reading_id == _READINGS.c.id)
+        link = _PARAMETER_SETS.c.class_id == _CLASSES.c.id
+    else:
+        members, link = _READINGS, _READINGS.c.class_id == _CLASSES.c.id
+    member = select(literal(1)).select_from(members).where(link, member_condition)
+    where = [compile_condition(o) for o in outside]
+    return statement.where(*where, exists(member)).correlate(None)
+
+
+# --- sorting and columns --------------------------------------------------------------------
+
+
+def _sort_expression(field: Field) -> ColumnElement[Any]:
+    """A per-row expression whose order is the field's order."""
+    if field.type is FieldType.BIG_INTEGER:
+        return _column(field.columns[1])
+    if field.type is FieldType.FRACTION:
+        # Stored fractions have small denominators, so doubles order them exactly.
+        return cast(_column(field.columns[0]), Float) / cast(_column(field.columns[1]), Float)
+    if field.type is FieldType.BOOLEAN:
+        return cast(_column(field.columns[0]), Integer)
+    return _column(field.columns[0])
+
+
+def _member_source(field: Field) -> tuple[Table, ColumnElement[bool]]:
+    """The table holding a field and its link to the class row of the enclosing statement."""
+    table = next(iter(field.tables))
+    if table == "frames":
+        return _FRAMES, _FRAMES.c.id == _CLASSES.c.frame_id
+    if table == "readings":
+        return _READINGS, _READINGS.c.class_id == _CLASSES.c.id
+    return _PARAMETER_SETS, _PARAMETER_SETS.c.class_id == _CLASSES.c.id
+
+
+def sort_clause(field_name: str, descending: bool = False) -> tuple[ColumnElement[Any], ...]:
+    """ORDER BY elements for a statement over ``classes``: the field, then area and rank.
+
+    ``field_name`` is a field name or alias, optionally prefixed with ``-`` for descending
+    (``parse_sort_key``; an unknown field raises QuerySyntaxError listing the valid ones).
+    A reading- or parameter-level field sorts a class by its smallest value among the members,
+    by its largest when descending.
+    """
+    key = parse_sort_key(field_name)
+    descending = descending or key.descending
+    field = require_field(key.field)
+    expression = _sort_expression(field)
+    if "classes" not in field.tables:
+        table, link = _member_source(field)
+        aggregate = func.max if descending else func.min
+        if table is _FRAMES:
+            aggregate = func.min  # one frame per class
+        expression = (
+            select(aggregate(expression)).where(link).correlate(_CLASSES).scalar_subquery()
+        )
+    ordered = expression.desc() if descending else expression.asc()
+    return (ordered, _CLASSES.c.area.asc(), _CLASSES.c.rank.asc())
+
+
+def _text_expression(field: Field) -> ColumnElement[str]:
+    """A per-row expression giving the field's value as text (``3``, ``1/3``, ``yes``)."""
+    if field.type is FieldType.BIG_INTEGER:
+        return _column(field.columns[0])
+    if field.type is FieldType.BOOLEAN:
+        return case((_column(field.columns[0]) == true(), "yes"), else_="no")
+    if field.type is FieldType.FRACTION:
+        numerator, denominator = (_column(c) for c in field.columns)
+        return case(
+            (denominator == 1, cast(numerator, String)),
+            else_=cast(numerator, String) + "/" + cast(denominator, String),
+        )
+    return cast(_column(field.columns[0]), String)
+
+
+def column_clause(field_name: str) -> Label[str]:
+    """The value of a field for the class row of the enclosing statement, as labelled text.
+
+    Class-level fields give their value; reading- and parameter-level fields give the
+    smallest and largest value over the members, as ``low..high`` when they differ. The label
+    is the field's canonical name.
+    """
+    (name,) = parse_field_names(field_name)
+    field = require_field(name)
+    text = _text_expression(field)
+    if "classes" in field.tables:
+        return text.label(field.name)
+    table, link = _member_source(field)
+    order = _sort_expression(field)
+    # Correlate only the class row: the enclosing statement may join frames itself.
+    values = select(text).where(link).correlate(_CLASSES)
+    low = values.order_by(order.asc()).limit(1).scalar_subquery()
+    if table is _FRAMES:
+        return low.label(field.name)
+    high = values.order_by(order.desc()).limit(1).scalar_subquery()
+    return case((low == high, low), else_=low + ".." + high).label(field.name)
+
+
+def column_clauses(field_names: Sequence[str]) -> list[Label[str]]:
+    """``column_clause`` for each of several field names (validate with parse_field_names)."""
+    return [column_clause(name) for name in field_names]
+
+
+__all__ = ["column_clause", "column_clauses", "compile_condition", "compile_query", "sort_clause"]
