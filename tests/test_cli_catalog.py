@@ -217,3 +217,41 @@ def test_show_without_catalog_says_how_to_build(tmp_path: Path) -> None:
 def test_every_command_has_help(command: str) -> None:
     result = invoke(command, "--help")
     assert result.exit_code == 0 and "Example:" in result.stdout
+
+
+def test_ctrl_c_keeps_complete_areas_and_the_next_build_resumes(tmp_path: Path) -> None:
+    import signal
+    import subprocess
+    import sys
+    import time
+
+    location = str(tmp_path / "interrupted.sqlite3")
+    # The Typer app in standalone mode, as a console script runs it.
+    script = "import sys; from zoo.cli import app; sys.argv[0] = 'zoo'; app()"
+    process = subprocess.Popen(
+        [sys.executable, "-c", script, "build", "-n", "60", "--db", location, "--jobs", "2"],
+        stdout=subprocess.PIPE,
+        stderr=subprocess.PIPE,
+    )
+    from zoo.catalog import Catalog
+    from zoo.errors import CatalogError
+
+    deadline = time.monotonic() + 120
+    while time.monotonic() < deadline:
+        try:
+            with Catalog.open(location) as catalog:
+                if catalog.complete_to() >= 10:
+                    break
+        except CatalogError:
+            pass
+        time.sleep(0.05)
+    process.send_signal(signal.SIGINT)
+    _, err = process.communicate(timeout=60)
+    assert process.returncode == 130
+    assert "Every area stored so far is complete and kept" in err.decode()
+    with Catalog.open(location) as catalog:
+        kept = catalog.complete_to()
+        assert 10 <= kept < 60 and catalog.complete_areas() == list(range(1, kept + 1))
+    result = invoke("build", "-n", str(kept + 2), "--db", location, "--jobs", "1")
+    assert result.exit_code == 0
+    assert result.stdout.startswith(f"Stored areas {kept + 1}..{kept + 2}: ")

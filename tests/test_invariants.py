@@ -516,3 +516,40 @@ def test_slowness_published_values() -> None:
     assert invariants.slowness(C(12, 4, 1, 1)) == Fraction(1, 2)
     assert invariants.slowness(C(4, 2, 2, 3)) == Fraction(1, 3)
     assert invariants.slowness(C(3, 3, 2, 2)) == 0  # symmetric cycloids, theory.md §10
+
+
+def test_symmetric_cycloids() -> None:
+    # theory.md §10: for alpha = beta, w = 0, cyc = gamma + delta, A = alpha*cyc, and every
+    # cycle length is a multiple of gamma + delta (the last by networkx on the explicit nets).
+    for a, c, d in itertools.product(range(1, 7), repeat=3):
+        p = C(a, a, c, d)
+        assert invariants.minimal_cycle_length(p) == c + d
+        assert p.area == a * invariants.minimal_cycle_length(p)
+        assert invariants.slowness(p) == 0
+    for p in (C(2, 2, 1, 2), C(3, 3, 1, 2), C(2, 2, 2, 1), C(1, 1, 2, 3), C(2, 2, 1, 3)):
+        graph = place_graph(brute_net(p))
+        for cycle in nx.simple_cycles(graph):
+            transitions = sum(1 for v in cycle if graph.nodes[v]["kind"] == "transition")
+            assert transitions % (p.gamma + p.delta) == 0, (p, cycle)
+
+
+def test_enabled_count_bounds_over_all_reachable_markings() -> None:
+    # theory.md §3.1 [VERIFIED A <= 22]: every reachable marking enables between 1 and
+    # min(alpha, beta) transitions, and M0 reaches the maximum.
+    for p in (C(4, 2, 2, 3), C(3, 3, 1, 3), C(2, 3, 1, 2), C(3, 2, 2, 2), C(12, 4, 1, 1)):
+        net = brute_net(p)
+        area = len(net.points)
+        f_in, b_in = input_places(net)
+        start = initial_marking(net)
+        seen, queue = {start}, deque([start])
+        while queue:
+            marking = queue.popleft()
+            enabled = enabled_at(net, marking)[0]
+            assert 1 <= len(enabled) <= min(p.alpha, p.beta)
+            for t in enabled:
+                after = marking & ~(1 << f_in[t]) & ~(1 << (area + b_in[t]))
+                after |= (1 << t) | (1 << (area + t))
+                if after not in seen:
+                    seen.add(after)
+                    queue.append(after)
+        assert len(enabled_at(net, start)[0]) == min(p.alpha, p.beta)

@@ -261,7 +261,8 @@ def iteration_depth(p: ParameterSet) -> int:
     The parameter sets of the same system (same lattice, same alpha and beta) are the
     C(alpha, beta, gamma + k*alpha, delta - k*beta) with both last entries positive (delta- and
     gamma-steps keep the marking, theory.md §5.2). C(p) is an n-fold iteration iff one of them
-    has n | gcd(gamma', delta'). [Derived; checked by lattice inclusion in tests.]
+    has n | gcd(gamma', delta'). [Derived; checked against a search over all smaller systems in
+    tests/test_algebra.py.]
     """
     best = 1
     k_lo = -((p.gamma - 1) // p.alpha)

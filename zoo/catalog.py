@@ -727,9 +727,8 @@ class Catalog:
         if not ids:
             return []
         classes: dict[str, Any] = {}
-        frames: dict[str, Any] = {}
         readings: dict[str, list[Any]] = {}
-        members_of_reading: dict[int, list[ParameterSet]] = {}
+        members_of_reading: dict[int, list[tuple[int, int, int, int]]] = {}
         seeds: dict[str, list[SeedEntry]] = {}
         class_table = _table(ClassRecord)
         frame_table = _table(FrameRecord)
@@ -746,7 +745,7 @@ class Catalog:
                 .order_by(ReadingRecord.id)
             ):
                 readings.setdefault(row.class_id, []).append(row)
-            for row in connection.execute(
+            for alpha, beta, gamma, delta, reading_id in connection.execute(
                 select(
                     ParameterSetRecord.alpha,
                     ParameterSetRecord.beta,
@@ -755,26 +754,26 @@ class Catalog:
                     ParameterSetRecord.reading_id,
                 ).where(ParameterSetRecord.class_id.in_(chunk))
             ):
-                members_of_reading.setdefault(row.reading_id, []).append(
-                    ParameterSet(row.alpha, row.beta, row.gamma, row.delta)
-                )
+                members_of_reading.setdefault(reading_id, []).append((alpha, beta, gamma, delta))
             for row in connection.execute(
                 select(_table(SeedRecord)).where(SeedRecord.class_id.in_(chunk))
             ):
                 seeds.setdefault(row.class_id, []).append(_seed_entry(row))
-        del frames
         entries: list[ClassEntry] = []
         for class_id in ids:
             row = classes.get(class_id)
             if row is None:
                 continue
-            reading_dicts = []
+            ordered: list[tuple[tuple[int, int, int, int], dict[str, object]]] = []
             members: list[ParameterSet] = []
             for reading in readings.get(class_id, []):
-                reading_members = sorted(members_of_reading.get(reading.id, []))
+                values = sorted(members_of_reading.get(reading.id, []))
+                reading_members = [ParameterSet(*v) for v in values]
                 members.extend(reading_members)
-                reading_dicts.append(_reading_dict(reading, reading_members))
-            reading_dicts.sort(key=lambda r: _params_key(str(r["label"])))
+                first = values[0] if values else (MAX_AREA, 0, 0, 0)
+                ordered.append((first, _reading_dict(reading, reading_members)))
+            ordered.sort(key=lambda pair: pair[0])
+            reading_dicts = [d for _, d in ordered]
             entries.append(
                 ClassEntry(
                     id=row.id,
@@ -1015,10 +1014,6 @@ def _seed_entry(row: Any) -> SeedEntry:
     )
 
 
-def _params_key(text: str) -> tuple[int, ...]:
-    return parse_params(text).as_tuple() if text else (MAX_AREA,)
-
-
 def _chunks(values: list[str]) -> Iterator[list[str]]:
     for start in range(0, len(values), _CHUNK):
         yield values[start : start + _CHUNK]
@@ -1058,11 +1053,16 @@ def _query_class_ids(
         if limit is None:
             ids = [row[0] for row in connection.execute(statement.order_by(*order))]
             return ids, len(ids)
-        total = connection.execute(
-            select(func.count()).select_from(statement.subquery())
-        ).scalar_one()
-        ids = [row[0] for row in connection.execute(statement.order_by(*order).limit(limit))]
-        return ids, int(total)
+        if limit == 0:
+            total = connection.execute(
+                select(func.count()).select_from(statement.subquery())
+            ).scalar_one()
+            return [], int(total)
+        # One pass: the window count is taken over every match before LIMIT applies.
+        rows = connection.execute(
+            statement.add_columns(func.count().over().label("total")).order_by(*order).limit(limit)
+        ).all()
+        return [row[0] for row in rows], int(rows[0][1]) if rows else 0
 
 
 def _query_count(engine: Engine, node: Any, seed: str | None) -> int:

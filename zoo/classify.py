@@ -167,8 +167,29 @@ FormFunction = Callable[[ParameterSet], CanonicalLike]
 
 
 def _canonical_functions() -> tuple[FormFunction, FormFunction]:
-    """system_form and net_form of zoo.canonical, imported late so enumeration stays light."""
-    from zoo.canonical import net_form, system_form
+    """zoo.canonical's system_form and net_form, sharing the explicit net of the last call.
+
+    A frame's label is the label of its first class, so its net form follows that class's
+    system form directly (see classify_area) and the net is built once for both. Imported
+    late so that enumeration alone stays light.
+    """
+    from zoo.canonical import canonical_form
+    from zoo.net import CycloidNet, build_net
+
+    last: dict[ParameterSet, CycloidNet] = {}
+
+    def net_of(p: ParameterSet) -> CycloidNet:
+        net = last.get(p)
+        if net is None:
+            last.clear()
+            net = last[p] = build_net(p)
+        return net
+
+    def system_form(p: ParameterSet) -> CanonicalLike:
+        return canonical_form(net_of(p), marked=True)
+
+    def net_form(p: ParameterSet) -> CanonicalLike:
+        return canonical_form(net_of(p), marked=False)
 
     return system_form, net_form
 
@@ -259,10 +280,16 @@ def classify_area(
     # readings (or lattices) without an explicit isomorphism.
     calls = 0
     class_forms: list[CanonicalLike] = []
+    frame_of_label = {class_groups[ids[0]][0][0]: index for index, ids in enumerate(frame_groups)}
+    label_net_forms: dict[int, CanonicalLike] = {}
     for readings in class_groups:
         form = system_form(readings[0][0])
         calls += 1
         class_forms.append(form)
+        frame_index = frame_of_label.get(readings[0][0])
+        if frame_index is not None:  # the same net, unmarked: the frame's own form
+            label_net_forms[frame_index] = net_form(readings[0][0])
+            calls += 1
         if not _is_swap_pair(readings):
             for members in readings[1:]:
                 other = system_form(members[0])
@@ -278,10 +305,9 @@ def classify_area(
         problems,
     )
     frame_forms: list[CanonicalLike] = []
-    for class_indexes in frame_groups:
+    for frame_index, class_indexes in enumerate(frame_groups):
         label = class_groups[class_indexes[0]][0][0]
-        form = net_form(label)
-        calls += 1
+        form = label_net_forms[frame_index]
         frame_forms.append(form)
         lattices: dict[algebra.LatticeKey, ParameterSet] = {}
         for index in class_indexes:

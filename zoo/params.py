@@ -64,6 +64,7 @@ class ParameterSet:
         return self.alpha * self.delta + self.beta * self.gamma
 
     def as_tuple(self) -> tuple[int, int, int, int]:
+        """(alpha, beta, gamma, delta) as a plain tuple."""
         return (self.alpha, self.beta, self.gamma, self.delta)
 
     def swap(self) -> ParameterSet:
@@ -75,6 +76,7 @@ class ParameterSet:
 
     @classmethod
     def parse(cls, text: str) -> ParameterSet:
+        """Parse any accepted written form; see ``parse_params``."""
         return parse_params(text)
 
 

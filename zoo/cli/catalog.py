@@ -166,11 +166,11 @@ def _run_build(build: Any) -> BuildReport:
     except KeyboardInterrupt:
         bar.stop()
         typer.echo(
-            "Interrupted: every area stored so far is complete and kept; run the same command "
-            "again to resume.",
+            "Every area stored so far is complete and kept; run the same command again to "
+            "resume.",
             err=True,
         )
-        raise typer.Exit(130) from None
+        raise  # the entry point prints "Interrupted." and exits with status 130
     except ZooError as exc:
         bar.stop()
         raise fail(str(exc)) from None
