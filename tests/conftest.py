@@ -22,6 +22,7 @@ import os
 import uuid
 from collections.abc import Iterator
 from pathlib import Path
+from typing import Any
 
 import pytest
 from sqlalchemy.engine import make_url
@@ -60,6 +61,27 @@ def _unreachable(reason: str) -> None:
     pytest.skip(f"{message} (set CI=1 to make this a failure)")
 
 
+def _is_running(pid: int) -> bool:
+    try:
+        os.kill(pid, 0)
+    except ProcessLookupError:
+        return False
+    except PermissionError:
+        return True
+    return True
+
+
+def _drop_leftovers(admin: Any) -> None:
+    """Drop the databases of earlier test sessions on this machine that were killed mid-run."""
+    rows = admin.execute(
+        "SELECT datname FROM pg_database WHERE datname LIKE 'zoo\\_test\\_%'"
+    ).fetchall()
+    for (datname,) in rows:
+        parts = datname.split("_")
+        if len(parts) == 4 and parts[2].isdigit() and not _is_running(int(parts[2])):
+            admin.execute(f'DROP DATABASE IF EXISTS "{datname}" WITH (FORCE)')
+
+
 @pytest.fixture(scope="session")
 def postgres_database() -> Iterator[str]:
     """A uniquely named database on the PostgreSQL server for this session, dropped at the end."""
@@ -74,6 +96,7 @@ def postgres_database() -> Iterator[str]:
     if failure:
         _unreachable(failure)  # fails in CI, skips elsewhere
     with admin:
+        _drop_leftovers(admin)
         admin.execute(f'CREATE DATABASE "{name}"')
         try:
             url = make_url(ADMIN_URL).set(drivername="postgresql+psycopg", database=name)

@@ -240,7 +240,7 @@ def test_ctrl_c_keeps_complete_areas_and_the_next_build_resumes(tmp_path: Path) 
     while time.monotonic() < deadline:
         try:
             with Catalog.open(location) as catalog:
-                if catalog.complete_to() >= 10:
+                if catalog.complete_to() >= 6:
                     break
         except CatalogError:
             pass
@@ -251,7 +251,7 @@ def test_ctrl_c_keeps_complete_areas_and_the_next_build_resumes(tmp_path: Path) 
     assert "Every area stored so far is complete and kept" in err.decode()
     with Catalog.open(location) as catalog:
         kept = catalog.complete_to()
-        assert 10 <= kept < 60 and catalog.complete_areas() == list(range(1, kept + 1))
+        assert 6 <= kept < 60 and catalog.complete_areas() == list(range(1, kept + 1))
     result = invoke("build", "-n", str(kept + 2), "--db", location, "--jobs", "1")
     assert result.exit_code == 0
     assert result.stdout.startswith(f"Stored areas {kept + 1}..{kept + 2}: ")

@@ -85,7 +85,7 @@ trees = st.recursive(
 )
 
 
-@settings(max_examples=400, deadline=None)
+@settings(max_examples=250, deadline=None)
 @given(tree=trees)
 def test_render_then_parse_gives_the_same_tree(tree: Node) -> None:
     text = tree.render()

@@ -368,6 +368,26 @@ def shortest_cycle_through(
     return 0
 
 
+def closed_walk_counts(graph: MarkedGraph, start: int, max_length: int) -> tuple[int, ...]:
+    """How many closed walks of each length 1..max_length start and end at a transition.
+
+    An invariant of the unmarked net under isomorphism, the same at every transition of a
+    cycloid (its translations act transitively, theory.md §2.4); used to set candidates apart
+    cheaply. Dynamic programming over walk lengths, O(max_length * |P|).
+    """
+    successors = _successors(graph)
+    current = {start: 1}
+    counts: list[int] = []
+    for _ in range(max_length):
+        following: dict[int, int] = {}
+        for u, ways in current.items():
+            for _, v in successors[u]:
+                following[v] = following.get(v, 0) + ways
+        current = following
+        counts.append(current.get(start, 0))
+    return tuple(counts)
+
+
 def enabled_transitions(graph: MarkedGraph) -> int:
     """Transitions whose input places are all marked (min(alpha, beta) for C(p), theory.md §3.1)."""
     return sum(
@@ -461,7 +481,13 @@ def _identify(net: PlaceTransitionNet, location: str | None, use_catalog: bool) 
     # One nauty call per class, not per candidate: candidates with equal algebraic class keys
     # are isomorphic (theory.md §5.1, confirmed with nauty by every catalog build), so only
     # their label needs comparing.
-    labels = dict.fromkeys(_class_label(candidate) for candidate in found)
+    labels = list(dict.fromkeys(_class_label(candidate) for candidate in found))
+    if len(labels) > 1:
+        # Several classes share the observables (theory.md §6): drop those whose nets already
+        # differ in a cheap invariant before paying for their canonical forms.
+        length = loop + 4
+        profile = closed_walk_counts(graph, 0, length)
+        labels = [q for q in labels if closed_walk_counts(build_net(q), 0, length) == profile]
     for params in labels:
         target = build_net(params)
         target_form = canonical_form(target, marked=True)

@@ -19,7 +19,7 @@ from typing import TYPE_CHECKING, Annotated, Any
 import typer
 
 from zoo.cli.app import app, fail
-from zoo.errors import ParameterError, ZooError
+from zoo.errors import ParameterError, QuerySyntaxError, ZooError
 
 if TYPE_CHECKING:
     from rich.progress import Progress, TaskID
@@ -294,11 +294,12 @@ def find(
             result = catalog.find(query, sort=sort, limit=limit, seed=seed, columns=columns)
         finally:
             catalog.close()
+    except QuerySyntaxError as exc:
+        typer.echo(f"Error: {exc}", err=True)
+        if exc.query:
+            typer.echo(exc.caret_text(), err=True)
+        raise typer.Exit(1) from None
     except ZooError as exc:
-        if hasattr(exc, "caret_text") and getattr(exc, "query", ""):
-            typer.echo(f"Error: {exc}", err=True)
-            typer.echo(exc.caret_text(), err=True)  # type: ignore[attr-defined]
-            raise typer.Exit(1) from None
         raise fail(str(exc)) from None
     _print_find(result, fmt, columns)
 

@@ -231,9 +231,7 @@ def sort_clause(field_name: str, descending: bool = False) -> tuple[ColumnElemen
         aggregate = func.max if descending else func.min
         if table is _FRAMES:
             aggregate = func.min  # one frame per class
-        expression = (
-            select(aggregate(expression)).where(link).correlate(_CLASSES).scalar_subquery()
-        )
+        expression = select(aggregate(expression)).where(link).correlate(_CLASSES).scalar_subquery()
     ordered = expression.desc() if descending else expression.asc()
     return (ordered, _CLASSES.c.area.asc(), _CLASSES.c.rank.asc())
 
