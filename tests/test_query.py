@@ -93,7 +93,7 @@ def test_render_then_parse_gives_the_same_tree(tree: Node) -> None:
     assert parse_query(text).render() == text
 
 
-@settings(max_examples=200, deadline=None)
+@settings(max_examples=150, deadline=None)
 @given(tree=trees, data=st.data())
 def test_spacing_case_and_aliases_do_not_change_the_tree(tree: Node, data: st.DataObject) -> None:
     # Re-spell the canonical text: extra spaces around tokens, upper-case keywords, aliases.
@@ -348,7 +348,7 @@ _QUERYISH = st.sampled_from(
 )  # fmt: skip
 
 
-@settings(max_examples=300, deadline=None)
+@settings(max_examples=200, deadline=None)
 @given(text=st.text(max_size=40) | st.lists(_QUERYISH, max_size=14).map("".join))
 def test_any_text_parses_or_raises_query_syntax_error(text: str) -> None:
     try:

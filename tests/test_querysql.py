@@ -347,7 +347,7 @@ def test_every_registry_column_exists_in_the_models() -> None:
             assert name in tables[table].c, f"{field.name}: {column} missing from the models"
 
 
-@settings(max_examples=200, deadline=None)
+@settings(max_examples=150, deadline=None)
 @given(tree=trees)
 def test_sql_agrees_with_python_evaluation_on_sqlite(sqlite_engine: Engine, tree: Node) -> None:
     assert run(sqlite_engine, tree) == evaluate(tree)
