@@ -5,8 +5,9 @@ from __future__ import annotations
 import hashlib
 import random
 import sys
+import warnings
 from collections import defaultdict
-from functools import lru_cache
+from functools import cache
 from math import factorial, gcd
 
 import networkx as nx
@@ -36,12 +37,12 @@ from zoo.params import ParameterSet
 C = ParameterSet
 
 
-@lru_cache(maxsize=None)
+@cache
 def net_of(p: ParameterSet) -> CycloidNet:
     return build_net(p)
 
 
-@lru_cache(maxsize=None)
+@cache
 def form_of(p: ParameterSet, marked: bool, typed: bool = False) -> CanonicalForm:
     return canonical_form(net_of(p), marked=marked, typed=typed)
 
@@ -76,9 +77,22 @@ def node_match(marked: bool, typed: bool):  # type: ignore[no-untyped-def]
 
 
 def nx_isomorphic(g1: MarkedGraph, g2: MarkedGraph, marked: bool, typed: bool = False) -> bool:
-    return nx.is_isomorphic(
-        reference_digraph(g1), reference_digraph(g2), node_match=node_match(marked, typed)
-    )
+    """networkx's answer: a Weisfeiler-Lehman hash first (different hashes prove
+    non-isomorphism), then VF2 with node-colour matching."""
+    d1, d2 = reference_digraph(g1), reference_digraph(g2)
+    for g in (d1, d2):
+        for _node, data in g.nodes(data=True):
+            data["wl"] = "|".join(
+                [str(data["kind"]), str(data.get("tokens", "")) if marked else "",
+                 str(data.get("colour", "")) if typed else ""]
+            )  # fmt: skip
+    with warnings.catch_warnings():  # networkx 3.5 notes that its directed hashes changed
+        warnings.simplefilter("ignore", UserWarning)
+        h1 = nx.weisfeiler_lehman_graph_hash(d1, node_attr="wl")
+        h2 = nx.weisfeiler_lehman_graph_hash(d2, node_attr="wl")
+    if h1 != h2:
+        return False
+    return bool(nx.is_isomorphic(d1, d2, node_match=node_match(marked, typed)))
 
 
 def nx_automorphism_count(graph: MarkedGraph, marked: bool, typed: bool, cap: int = 10**5) -> int:
@@ -129,8 +143,8 @@ def relabelling(graph: MarkedGraph, rng: random.Random) -> tuple[MarkedGraph, li
 
 def twin_rich_graph(rng: random.Random) -> MarkedGraph:
     """A random marked graph with many parallel places and interchangeable transitions."""
-    base = random_marked_graph(rng, rng.randint(1, 5), rng.randint(0, 7), 1)
-    copies = [rng.randint(1, 3) for _ in base.transitions]
+    base = random_marked_graph(rng, rng.randint(1, 4), rng.randint(0, 5), 1)
+    copies = [rng.randint(1, 2) for _ in base.transitions]
     leaves = [[(t, c) for c in range(k)] for t, k in enumerate(copies)]
     index = {leaf: i for i, leaf in enumerate(x for group in leaves for x in group)}
     pre: list[int] = []
@@ -139,7 +153,9 @@ def twin_rich_graph(rng: random.Random) -> MarkedGraph:
     for j in range(base.place_count):
         u, v = base.pre[j], base.post[j]
         pairs = (
-            [(a, a) for a in leaves[u]] if u == v else [(a, b) for a in leaves[u] for b in leaves[v]]
+            [(a, a) for a in leaves[u]]
+            if u == v
+            else [(a, b) for a in leaves[u] for b in leaves[v]]
         )
         for a, b in pairs:
             for _ in range(rng.randint(1, 2)):
@@ -301,18 +317,23 @@ def test_nauty_agrees_with_vf2_on_random_foreign_graphs() -> None:
 
 def test_automorphism_counts_against_networkx() -> None:
     # Exact group orders against automorphisms counted by VF2 on small nets, all four levels
-    for p in parameter_sets(7) + [C(2, 2, 1, 3), C(2, 2, 2, 2), C(3, 3, 1, 3), C(4, 2, 2, 3)]:
+    # (VF2 lists each automorphism, about a millisecond apiece, so the unmarked untyped nets of
+    # C(1,1,c,d) with 2^A * A of them stop at area 5)
+    examples = [C(2, 2, 1, 3), C(2, 2, 2, 2), C(3, 3, 1, 3), C(3, 3, 2, 2), C(4, 2, 2, 3)]
+    for p in parameter_sets(7) + examples:
         for marked in (True, False):
             for typed in (True, False):
+                if not marked and not typed and p.area > 5 and p not in examples:
+                    continue
                 expected = nx_automorphism_count(net_of(p), marked, typed)
                 assert form_of(p, marked, typed).automorphisms == expected, (p, marked, typed)
     rng = random.Random(3)
-    for _ in range(40):
+    for _ in range(25):
         g = twin_rich_graph(rng)
         for marked in (True, False):
-            counted = nx_automorphism_count(g, marked, False, cap=2000)
+            counted = nx_automorphism_count(g, marked, False, cap=300)
             order = canonical_form(g, marked).automorphisms
-            assert order == counted if counted <= 2000 else order > 2000
+            assert order == counted if counted <= 300 else order > 300
 
 
 def test_typed_automorphisms_are_translations() -> None:

@@ -14,9 +14,10 @@ import pytest
 from sqlalchemy import select, text, update
 
 from zoo import invariants
+from zoo.canonical import net_form, system_form
 from zoo.catalog import Catalog, lookup_class_id
 from zoo.classify import classify_area
-from zoo.enumeration import parameter_set_count
+from zoo.enumeration import iter_parameter_sets, parameter_set_count
 from zoo.errors import CatalogError, NotInCatalog
 from zoo.params import ParameterSet, parse_params
 from zoo.storage.models import CatalogInfo
@@ -77,6 +78,10 @@ def test_counts_per_area_match_enumeration_and_classification(fresh30: str) -> N
     assert (stats[0].parameter_sets, stats[0].classes) == (0, 0)  # area 1: nothing, complete
     for s in stats:
         assert s.parameter_sets == parameter_set_count(s.area)
+    for s in stats[:16]:  # nauty on every parameter set, the second, independent way
+        fingerprints = {system_form(p).fingerprint for p in iter_parameter_sets(s.area)}
+        net_fingerprints = {net_form(p).fingerprint for p in iter_parameter_sets(s.area)}
+        assert (s.classes, s.frames) == (len(fingerprints), len(net_fingerprints))
     for s in stats[:20]:
         result = classify_area(s.area)
         assert (s.readings, s.classes, s.frames) == (
@@ -84,6 +89,20 @@ def test_counts_per_area_match_enumeration_and_classification(fresh30: str) -> N
             len(result.classes),
             len(result.frames),
         )
+
+
+def test_stored_typed_nets_per_area_are_sigma_minus_tau(fresh30: str) -> None:
+    # theory.md §2.4: sigma(A) - tau(A) typed nets (distinct lattices) per area.
+    from sympy import divisor_count, divisor_sigma
+
+    with Catalog.open(fresh30) as catalog, catalog.engine.connect() as connection:
+        rows = connection.execute(
+            text("SELECT area, COUNT(DISTINCT lattice_g || ':' || lattice_r) FROM readings "
+                 "GROUP BY area ORDER BY area")
+        ).all()
+    assert [a for a, _ in rows] == list(range(2, 31))
+    for area, lattices in rows:
+        assert lattices == int(divisor_sigma(area)) - int(divisor_count(area))
 
 
 def test_stored_labels_and_members_recompute(fresh30: str) -> None:

@@ -18,6 +18,8 @@ from pathlib import Path
 
 import networkx as nx
 import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
 from networkx.algorithms.isomorphism import DiGraphMatcher
 from typer.testing import CliRunner
 
@@ -200,6 +202,19 @@ def test_renaming_and_order_never_change_the_answer() -> None:
             del data["mapping"]
             answers.add(json.dumps(data, sort_keys=True))
         assert len(answers) == 1
+
+
+@settings(max_examples=40, deadline=None)
+@given(
+    st.sampled_from([(2, 1, 1, 1), (4, 2, 2, 3), (3, 3, 2, 2), (2, 2, 1, 3), (1, 6, 1, 3)]),
+    st.randoms(use_true_random=False),
+)
+def test_any_renaming_gives_the_same_class(values: tuple[int, ...], rng: random.Random) -> None:
+    p = ParameterSet(*values)
+    foreign = parse_pnml(scrambled(pnml_document(build_net(p)), rng), "x")
+    answer = identify_net(foreign, use_catalog=False)
+    assert answer.params is not None and class_key(answer.params) == class_key(p)
+    assert_mapping_is_isomorphism(foreign, answer)
 
 
 # --- our scenario: a pipeline ring buffer ------------------------------------------------------

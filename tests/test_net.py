@@ -191,7 +191,11 @@ def test_net_limit() -> None:
 
 def test_area_200_builds_in_a_few_milliseconds() -> None:
     # Issue 2 item 4 ("area-200 nets must build in a few ms"); generous bound for a shared CPU.
-    for p in (ParameterSet(1, 1, 100, 100), ParameterSet(10, 10, 10, 10), ParameterSet(199, 1, 1, 1)):
+    for p in (
+        ParameterSet(1, 1, 100, 100),
+        ParameterSet(10, 10, 10, 10),
+        ParameterSet(199, 1, 1, 1),
+    ):
         start = time.perf_counter()
         net = build_net(p)
         assert time.perf_counter() - start < 0.05

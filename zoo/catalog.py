@@ -478,11 +478,16 @@ class Catalog:
                         }
                     ],
                 )
-        except (IntegrityError, OperationalError):
+        except (IntegrityError, OperationalError) as exc:
             # Another build may have stored this area meanwhile; anything else is an error.
             if area in self.complete_areas():
                 return False
-            raise
+            reason = str(getattr(exc, "orig", exc)).strip().splitlines()[0]
+            raise CatalogError(
+                f"cannot store area {area} in catalog {self.location}: {reason}; nothing of "
+                "this area was stored (if another build writes the same catalog, run one at a "
+                "time, then build again to resume)"
+            ) from None
         return True
 
     def _insert_area_rows(self, connection: Connection, result: AreaClassification) -> None:

@@ -205,8 +205,10 @@ def _plot_parallelogram(canvas: _Canvas, net: NetPicture) -> None:
             textcoords="offset points", fontsize=11 * s / 0.75 + 1, color="#5d5640",
             fontweight="bold", ha="center", va="top",
         )
-    _lattice_vector(ax, corners[0], corners[1], f"P = ({p.alpha}, {-p.beta})", s, corners[3])
-    _lattice_vector(ax, corners[0], corners[3], f"R = ({p.gamma}, {p.delta})", s, corners[1])
+    # The arrows O->P and O->R are the lattice vectors; their tips carry the corner letters and
+    # their coordinates go in the title (labels beside the arrows collide with folded copies).
+    _lattice_vector(ax, corners[0], corners[1])
+    _lattice_vector(ax, corners[0], corners[3])
 
     marker = 11 * s / 0.75
     gap = marker / 2 + 1
@@ -247,36 +249,20 @@ def _plot_parallelogram(canvas: _Canvas, net: NetPicture) -> None:
                 va="center", color="#111111", zorder=6,
             )
     ax.set_title(
-        f"{p}: fundamental parallelogram, A = {p.area}  (time up; forward arcs blue, "
-        "backward arcs red)", fontsize=10,
+        f"{p}: fundamental parallelogram, A = {p.area}, lattice vectors "
+        f"P = ({p.alpha}, {-p.beta}), R = ({p.gamma}, {p.delta})\n"
+        "time up; forward arcs (blue) to the upper right, backward arcs (red) to the upper left",
+        fontsize=9.5,
     )
 
 
-def _lattice_vector(
-    ax: Any, start: Point, end: Point, label: str, s: float, other: Point
-) -> None:
-    """An arrow for a lattice vector, labelled on the side away from the other vector."""
+def _lattice_vector(ax: Any, start: Point, end: Point) -> None:
+    """A thick arrow for a lattice vector from O."""
     ax.annotate(
         "", xy=end, xytext=start,
         arrowprops={"arrowstyle": "-|>,head_width=0.35,head_length=0.7", "color": "#5d5640",
                     "linewidth": 1.8, "shrinkA": 0, "shrinkB": 0},
         zorder=1,
-    )
-    mid = ((start[0] + end[0]) / 2, (start[1] + end[1]) / 2)
-    # Put the label outside the parallelogram: perpendicular to the vector, on the side
-    # opposite the other lattice vector.
-    away = (-(end[1] - start[1]), end[0] - start[0])
-    if away[0] * (other[0] - start[0]) + away[1] * (other[1] - start[1]) > 0:
-        away = (-away[0], -away[1])
-    norm = math.hypot(*away) or 1.0
-    offset = (away[0] / norm * 16, away[1] / norm * 16)
-    ax.annotate(
-        label, mid, xytext=offset, textcoords="offset points", fontsize=9 * s / 0.75 + 1,
-        color="#5d5640", va="center", fontweight="bold",
-        ha="right" if away[0] < -0.3 * norm else "left" if away[0] > 0.3 * norm else "center",
-        bbox={"boxstyle": "round,pad=0.15", "facecolor": "white", "edgecolor": "none",
-              "alpha": 0.8},
-        zorder=2,
     )
 
 

@@ -7,13 +7,15 @@ as its answer:
 1. every arc has weight 1 (theory.md §1: the Petri space is an ordinary net);
 2. it is a marked graph: every place has exactly one input and one output transition (§1);
 3. every transition has two input and two output places (§1);
-4. no place holds more than one token initially, the net is strongly connected, every cycle
-   carries a token (live), and no place can ever come to hold two tokens (1-safe) (§3.2);
-5. the token count fits: alpha + beta tokens with alpha*delta + beta*gamma = A forces at most A;
-6. synthesis by the robust method of theory.md §6: A = |T|, the token counts (alpha + beta
+4. no place holds more than one token initially, the net is strongly connected, and every
+   cycle carries a token (live) (§3.2);
+5. synthesis by the robust method of theory.md §6: A = |T|, the token counts (alpha + beta
    tokens, min(alpha, beta) transitions enabled, theory.md §3.1) and the minimal cycle length
    give the candidate parameter sets (``zoo.synthesis.synthesize``); a candidate is accepted
-   only when its canonical form equals the net's (``zoo.canonical``).
+   only when its canonical form equals the net's (``zoo.canonical``);
+6. when no candidate is accepted, the reason is the first of: a place can come to hold two
+   tokens (not 1-safe), more tokens than transitions, transitions that are not all alike, no
+   cycloid with these observables, not isomorphic to the ones that have them.
 
 Identification goes by canonical form, so names and the order of elements in the file never
 change the answer. The accepted class is reported by its label (its smallest member), its

@@ -28,7 +28,10 @@ def main() -> None:
     import zoo.cli  # noqa: F401  (registers every command on ``app``)
 
     try:
-        app(standalone_mode=False)
+        # Outside standalone mode an Exit raised by a command comes back as the return value.
+        status = app(standalone_mode=False)
+        if isinstance(status, int) and status:
+            sys.exit(status)
     except QuerySyntaxError as exc:
         typer.echo(f"Error: {exc}", err=True)
         if exc.query:

@@ -226,11 +226,15 @@ def identify(
         bool, typer.Option("--no-catalog", help="Do not look up class identifiers.")
     ] = False,
 ) -> None:
-    """Decide whether the net in each file is a cycloid system; if so, which one and how.
+    """Decide whether the net in each file is a cycloid system, and which one.
 
-    A cycloid gets its class label, its catalog identifier and the isomorphism onto the label's
-    coordinates; any other net gets the first rule it breaks. Exit status 1 when a file cannot
-    be read. Example: zoo identify ring.pnml --format json
+    A cycloid gets its class label, its catalog identifier and the
+    isomorphism onto the label's coordinates; any other net gets the
+    first rule it breaks (docs/identify.md).
+
+    Exit status 1 when a file cannot be read.
+
+    Example: zoo identify ring.pnml --format json
     """
     from zoo.identify import identify_file
 
