@@ -19,7 +19,7 @@ from typing import Annotated, NoReturn
 import typer
 
 from zoo.cli.app import app
-from zoo.errors import FormatError, ZooError
+from zoo.errors import FormatError, ParameterError, ZooError
 from zoo.params import ParameterSet, parse_params
 
 DbOption = Annotated[
@@ -83,7 +83,7 @@ def resolve_reference(ref: str, db: str | None) -> ParameterSet:
     if identifier is None:
         return parse_params(ref)
     if identifier.kind == "frame":
-        raise FormatError(
+        raise ParameterError(
             f"{identifier} is a frame (an unmarked net); export a class such as "
             f"CY{identifier.area}-1 or a parameter set"
         )
