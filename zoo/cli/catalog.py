@@ -80,7 +80,13 @@ def _console(stderr: bool = False) -> Any:
 
 
 class ProgressBar:
-    """A ``zoo.catalog.BuildProgress`` drawn with rich.progress on standard error."""
+    """A ``zoo.catalog.BuildProgress`` drawn with rich.progress on standard error.
+
+    The bar advances by estimated work, not by parameter sets: the nauty work of an area grows
+    with the number of its parameter sets times the size of its nets (the area), so weighting
+    each area by parameter sets x area keeps the time-left estimate honest while small areas
+    rush by. The text shows the parameter sets and areas done.
+    """
 
     def __init__(self, title: str = "Building catalog") -> None:
         self.title = title
@@ -88,43 +94,52 @@ class ProgressBar:
         self._task: TaskID | None = None
         self._areas_total = 0
         self._areas_done = 0
+        self._sets_total = 0
+        self._sets_done = 0
 
     def started(self, areas: Sequence[int], parameter_sets: int) -> None:
         from rich.progress import (
             BarColumn,
-            MofNCompleteColumn,
             Progress,
             TextColumn,
             TimeElapsedColumn,
             TimeRemainingColumn,
         )
 
+        from zoo.enumeration import parameter_set_count
+
         if not areas:
             return
         self._areas_total = len(areas)
+        self._sets_total = parameter_sets
         self._progress = Progress(
             TextColumn("{task.description}"),
             BarColumn(),
-            MofNCompleteColumn(),
-            TextColumn("parameter sets"),
-            TextColumn("{task.fields[areas]}"),
+            TextColumn("{task.fields[sets]} parameter sets, {task.fields[areas]}"),
             TimeElapsedColumn(),
-            TextColumn("left"),
+            TextColumn("elapsed,"),
             TimeRemainingColumn(),
+            TextColumn("left"),
             console=_console(stderr=True),
         )
+        work = sum(max(1, parameter_set_count(a) * a) for a in areas)
         self._task = self._progress.add_task(
-            self.title, total=parameter_sets, areas=f"areas 0/{len(areas)}"
+            self.title, total=work, sets=self._sets_text(), areas=f"areas 0/{len(areas)}"
         )
         self._progress.start()
+
+    def _sets_text(self) -> str:
+        return f"{self._sets_done:,}/{self._sets_total:,}"
 
     def area_done(self, stats: AreaStats) -> None:
         if self._progress is None or self._task is None:
             return
         self._areas_done += 1
+        self._sets_done += stats.parameter_sets
         self._progress.update(
             self._task,
-            advance=stats.parameter_sets,
+            advance=max(1, stats.parameter_sets * stats.area),
+            sets=self._sets_text(),
             areas=f"areas {self._areas_done}/{self._areas_total} (area {stats.area}: "
             f"{stats.classes} classes)",
         )
