@@ -30,7 +30,7 @@ from zoo.canonical import (
     system_form,
 )
 from zoo.enumeration import iter_parameter_sets
-from zoo.errors import FormatError, ZooError
+from zoo.errors import FormatError, LimitExceeded, ZooError
 from zoo.net import CycloidNet, MarkedGraph, build_net, to_networkx
 from zoo.params import ParameterSet
 
@@ -546,3 +546,13 @@ def test_wrong_input_gives_one_line_errors(call, message: str) -> None:  # type:
         call()
     assert isinstance(info.value, FormatError)
     assert message in str(info.value) and "\n" not in str(info.value)
+
+
+def test_canonical_limit() -> None:
+    # CANONICAL_LIMIT = 6,000 encoding vertices: a cycloid of area 1,201 has 6,005
+    with pytest.raises(LimitExceeded) as info:
+        system_form(C(1, 1, 1, 1200))
+    assert str(info.value) == (
+        "the canonical form of C(1,1,1,1200) needs 6,005 nauty vertices, more than the limit "
+        "6,000; choose a smaller net"
+    )

@@ -32,8 +32,9 @@ from zoo.params import ParameterSet
 ENCODING_VERSION = "v1"
 
 #: Largest net (transitions + 2 * places) handed to nauty: area 1,200 for a cycloid. Dense
-#: nauty's time grows steeply with symmetry: measured C(20,20,20,20) (area 800) 1.6 s,
-#: C(30,30,30,30) (area 1,800) 25 s, while asymmetric nets of area 1,200 take 0.3 s.
+#: nauty's time grows steeply with size and symmetry; measured on the 2-core machine:
+#: C(20,20,20,20) (area 800) 1.6 s, C(30,30,30,30) (area 1,800) 25 s, the asymmetric
+#: C(3,7,300,301) (area 3,003) 7 s and C(7,11,400,401) (area 7,207) 98 s.
 CANONICAL_LIMIT = 6_000
 
 _COLOUR = re.compile(r"[A-Za-z0-9_.-]+")

@@ -159,6 +159,18 @@ class CycloidNet(MarkedGraph):
     coordinates: tuple[Point, ...]
     kinds: tuple[str, ...]
 
+    def __post_init__(self) -> None:
+        super().__post_init__()
+        if not isinstance(self.params, ParameterSet):
+            raise FormatError(f"a cycloid net needs a ParameterSet, got {self.params!r}")
+        if len(self.coordinates) != self.transition_count or len(self.kinds) != self.place_count:
+            raise FormatError(
+                f"the net of {self.params} needs one coordinate pair per transition and one "
+                "kind per place"
+            )
+        if not set(self.kinds) <= {FORWARD, BACKWARD}:
+            raise FormatError(f"place kinds of {self.params} must be 'forward' or 'backward'")
+
     def describe(self) -> str:
         return str(self.params)
 

@@ -282,6 +282,14 @@ def find(
     from zoo.storage.database import catalog_exists, display_location, resolve_location
 
     try:
+        # A mistyped query must fail at once, not after building the default catalog.
+        from zoo.query import parse_query, parse_sort_key
+
+        if query.strip():
+            parse_query(query)
+        if sort:
+            parse_sort_key(sort)
+        _requested_columns(columns)
         url = resolve_location(db)
         if not catalog_exists(url):
             typer.echo(
