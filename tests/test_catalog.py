@@ -14,11 +14,12 @@ import pytest
 from sqlalchemy import select, text, update
 
 from zoo import invariants
+from zoo.build import write_area
 from zoo.canonical import net_form, system_form
 from zoo.catalog import Catalog, lookup_class_id
 from zoo.classify import classify_area
 from zoo.enumeration import iter_parameter_sets, parameter_set_count
-from zoo.errors import CatalogError, NotInCatalog
+from zoo.errors import CatalogError, NotInCatalog, ParameterError
 from zoo.params import ParameterSet, parse_params
 from zoo.storage.models import CatalogInfo
 
@@ -305,7 +306,7 @@ def test_big_numbers_are_exact_and_range_queries_compare_them(tmp_path: Path) ->
     with Catalog.open(location) as catalog:
         # Store area 70 alone (an area is independent of the others): C(35,35,1,1) has
         # C(70,35) = 112186277816662845432 > 2^63 reachable states (theory.md §10 formula).
-        catalog._write_area(classify_area(70), [])
+        write_area(catalog, classify_area(70), [])
         assert catalog.complete_to() == 4  # areas 5..69 are missing
         entry = catalog.get("C(35,35,1,1)")
         assert entry.invariants["states"] == 112186277816662845432
@@ -346,3 +347,42 @@ def test_the_same_build_on_every_backend(
         catalog.build(12, jobs=2)
     rows = dump(db_url)
     assert rows == fresh12_rows
+
+
+def test_iter_entries_streams_every_class_by_area_then_rank(fresh30: str) -> None:
+    with Catalog.open(fresh30) as catalog:
+        classes = {s.area: s.classes for s in catalog.stats()}
+        every = list(catalog.iter_entries())
+        # design.md §2: ranks 1..n per area, areas ascending.
+        expected = [f"CY{a}-{r}" for a in sorted(classes) for r in range(1, classes[a] + 1)]
+        assert [e.id for e in every] == expected
+        assert [e.id for e in catalog.iter_entries(batch_size=7)] == expected  # across batches
+        some = list(catalog.iter_entries([16, 12], batch_size=3))
+        assert [e.id for e in some] == [i for i in expected if i.startswith("CY16-")] + [
+            i for i in expected if i.startswith("CY12-")
+        ]
+        assert some[0] == catalog.get("CY16-1")  # the same entry as the single lookup
+        assert list(catalog.iter_entries([31])) == []  # not stored: nothing
+        with pytest.raises(ParameterError, match="batch_size"):
+            next(catalog.iter_entries(batch_size=0))
+
+
+def test_completeness_note_names_the_catalog(fresh30: str) -> None:
+    import shlex
+
+    with Catalog.open(fresh30) as catalog:
+        note = catalog.completeness_note("processes = 3 and area < 40")
+    assert note == (
+        "The catalog is complete up to area 30. Warning: the query reaches area 39; classes of "
+        f"areas 31..39 are missing (extend with: zoo build --max-area 39 --db "
+        f"{shlex.quote(fresh30)})."
+    )
+
+
+def test_missing_area_message_quotes_an_odd_location(tmp_path: Path) -> None:
+    location = str(tmp_path / "my catalog.sqlite3")
+    _build(Path(location), 3)
+    with Catalog.open(location) as catalog:
+        with pytest.raises(NotInCatalog) as info:
+            catalog.get("CY9-1")
+    assert str(info.value).endswith(f"extend it with: zoo build --max-area 9 --db '{location}'")

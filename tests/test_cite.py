@@ -14,6 +14,7 @@ from pybtex.database import parse_string
 from typer.testing import CliRunner
 
 from zoo import __version__
+from zoo.canonical import ENCODING_VERSION
 from zoo.catalog import Catalog
 from zoo.cite import CatalogVersion, Citation, bibtex_key, catalog_version, cite
 from zoo.cli import app
@@ -52,7 +53,10 @@ def test_bibtex_fields(catalog_path: str) -> None:
     note = bib.fields["note"]
     for part in (entry.id, entry.label, entry.fingerprint, __version__, "complete to area 12"):
         assert part in note
-    assert bib.fields["version"] == str(citation.version)
+    assert bib.fields["version"] == citation.version.describe()
+    assert bib.fields["version"] == (
+        f"zoo {__version__}, canonical encoding {ENCODING_VERSION}, complete to area 12"
+    )
     assert re.fullmatch(r"\d{4}", bib.fields["year"])
 
 
@@ -117,3 +121,14 @@ def test_cli_cite_unknown_entry(catalog_path: str) -> None:
     assert result.exit_code == 1
     assert result.stderr.startswith("Error: ")
     assert len(result.stderr.strip().splitlines()) == 1
+
+
+def test_bibtex_has_no_characters_that_ot1_misprints(catalog_path: str) -> None:
+    """LaTeX's OT1 text encoding has no < or > glyph (it prints ¡ and ¿), common practice."""
+    with Catalog.open(catalog_path) as catalog:
+        citation = cite(catalog, "CY12-1")
+    bibtex = citation.bibtex()
+    assert "<" not in bibtex and ">" not in bibtex
+    (entry,) = parse_string(bibtex, "bibtex").entries.values()
+    assert "complete to area 12" in entry.fields["howpublished"]
+    assert citation.version.describe() in citation.text()  # the same words in both forms

@@ -255,3 +255,53 @@ def test_ctrl_c_keeps_complete_areas_and_the_next_build_resumes(tmp_path: Path) 
     result = invoke("build", "-n", str(kept + 2), "--db", location, "--jobs", "1")
     assert result.exit_code == 0
     assert result.stdout.startswith(f"Stored areas {kept + 1}..{kept + 2}: ")
+
+
+@pytest.mark.parametrize("bound", ["0", "5000"])
+def test_rejected_build_leaves_no_catalog_file(tmp_path: Path, bound: str) -> None:
+    location = tmp_path / "x.db"
+    result = invoke("build", "--max-area", bound, "--db", str(location))
+    assert result.exit_code == 1
+    assert result.stderr.startswith("Error: --max-area ")
+    assert list(tmp_path.iterdir()) == []  # no x.db, no -wal or -shm beside it
+
+
+def test_rejected_build_keeps_an_existing_catalog(db: str) -> None:
+    result = invoke("build", "--max-area", "0", "--db", db)
+    assert result.exit_code == 1
+    assert Path(db).is_file()
+    assert invoke("find", "area <= 3", "--db", db, "--count").stdout == "3\n"
+
+
+def test_suggested_build_names_the_catalog_given_by_db(db: str) -> None:
+    import shlex
+
+    quoted = shlex.quote(db)
+    result = invoke("find", "area < 30", "--db", db, "--format", "json")
+    assert result.exit_code == 0
+    assert f"(extend with: zoo build --max-area 29 --db {quoted})." in result.stderr
+    shown = invoke("show", "CY25-1", "--db", db)
+    assert shown.exit_code == 1
+    assert shown.stderr.rstrip().endswith(
+        f"extend it with: zoo build --max-area 25 --db {quoted}"
+    )
+    member = invoke("show", "C(1,1,1,24)", "--db", db)
+    assert member.stderr.rstrip().endswith(f"zoo build --max-area 25 --db {quoted}")
+
+
+def test_suggested_build_needs_no_db_for_the_catalog_zoo_opens_anyway(
+    db: str, monkeypatch: pytest.MonkeyPatch
+) -> None:
+    monkeypatch.setenv("ZOO_CATALOG", db)
+    result = invoke("find", "area < 30")
+    assert "(extend with: zoo build --max-area 29)." in result.stdout
+
+
+def test_suggested_build_stays_within_the_build_limit(db: str) -> None:
+    from zoo.build import MAX_BUILD_AREA
+
+    result = invoke("find", "area = 99999999999999999999999", "--db", db, "--format", "jsonl")
+    assert result.exit_code == 0, result.output
+    assert f"zoo build --max-area {MAX_BUILD_AREA} --db " in result.stderr
+    assert f"areas above the build limit {MAX_BUILD_AREA:,} cannot be built" in result.stderr
+    assert "--max-area 99999999999999999999999" not in result.stderr

@@ -247,6 +247,16 @@ def test_show_with_catalog(tmp_path: Path) -> None:
     assert class_id in entry.stdout
     # a parameter set beyond the catalog's areas simply has no identifier
     assert show_json("4,2,2,5", "--db", db)["id"] is None
+    # explore resolves an identifier to its label; the class has 40 states (theory.md §11)
+    explored = explore_json(class_id, "--db", db)
+    assert explored["label"] == entry_label(class_id, db) and explored["states"] == 40
+
+
+def entry_label(class_id: str, db: str) -> str:
+    from zoo.catalog import Catalog
+
+    with Catalog.open(db) as catalog:
+        return catalog.get(class_id).label
 
 
 # --- zoo compare ----------------------------------------------------------------------------------
@@ -330,3 +340,164 @@ def test_compare_errors() -> None:
     assert result.exit_code == 1
     assert result.stderr == ("Error: a parameter set has four values (alpha, beta, gamma, delta), "
                              "got 1 in '4;2;2;3'; write it as 4,2,2,3\n")
+
+
+# --- zoo explore ----------------------------------------------------------------------------------
+
+EXPLORE_KEYS = {
+    "params", "label", "area", "places", "tokens", "state_limit", "states", "arcs",
+    "formula_states", "formula_arcs", "states_agree", "arcs_agree", "live", "one_safe",
+    "reversible", "dead_transitions", "bound", "seconds",
+}
+
+
+def explore_json(*args: str) -> dict:  # type: ignore[type-arg]
+    result = runner.invoke(app, ["explore", *args, "--format", "json"])
+    assert result.exit_code == 0, result.output
+    return json.loads(result.stdout)  # type: ignore[no-any-return]
+
+
+def test_explore_json_c4223() -> None:
+    report = explore_json("4,2,2,3")
+    assert set(report) == EXPLORE_KEYS  # docs/explore.md lists these keys
+    # theory.md §11 table row C(4,2,2,3) [VERIFIED]: 40 states, 64 edges
+    assert (report["states"], report["arcs"]) == (40, 64)
+    assert (report["formula_states"], report["formula_arcs"]) == (40, 64)
+    assert report["states_agree"] is True and report["arcs_agree"] is True
+    # theory.md §3.2: cycloid systems are live, 1-safe and reversible [VERIFIED]
+    assert (report["live"], report["one_safe"], report["reversible"]) == (True, True, True)
+    assert report["dead_transitions"] == [] and report["bound"] == 1
+    assert report["params"] == {"alpha": 4, "beta": 2, "gamma": 2, "delta": 3}
+    assert (report["area"], report["places"], report["tokens"]) == (16, 32, 6)
+    from zoo.behaviour import DEFAULT_STATE_LIMIT
+
+    assert report["state_limit"] == DEFAULT_STATE_LIMIT
+    assert isinstance(report["seconds"], float) and report["seconds"] >= 0
+
+
+@pytest.mark.parametrize(
+    ("params", "states", "arcs"),
+    [  # theory.md §11 table, RG states and edges [VERIFIED by explicit BFS]
+        ("3,3,1,3", 40, 72),
+        ("2,5,1,5", 45, 75),
+        ("1,10,1,5", 15, 15),
+        ("3,4,2,4", 100, 200),
+        ("12,4,1,1", 1820, 5824),
+    ],
+)
+def test_explore_matches_the_published_table(params: str, states: int, arcs: int) -> None:
+    report = explore_json(params)
+    assert (report["states"], report["arcs"]) == (states, arcs)
+    assert report["states_agree"] and report["arcs_agree"]
+    assert report["live"] and report["one_safe"] and report["reversible"]
+
+
+def test_explore_state_limit_is_exact() -> None:
+    # C(12,4,1,1) has exactly 1,820 reachable states (theory.md §11 [VERIFIED]).
+    assert explore_json("12,4,1,1", "--state-limit", "1820")["states"] == 1820
+    result = runner.invoke(app, ["explore", "12,4,1,1", "--state-limit", "1819"])
+    assert (result.exit_code, result.stdout) == (1, "")
+    assert result.stderr == (
+        "Error: reachability graph of C(12,4,1,1) has more than 1,819 states; raise "
+        "--state-limit or choose a smaller system (the closed formula predicts 1,820 states)\n"
+    )
+
+
+def test_explore_limit_from_the_console_script() -> None:
+    result = subprocess.run([str(ZOO), "explore", "100,100,1,1", "--state-limit", "1000"],
+                            capture_output=True, text=True, check=False)
+    # C(100,100,1,1): |RG| = C(200,100) ≈ 9.05e58 (theory.md §10)
+    assert (result.returncode, result.stdout) == (1, "")
+    assert result.stderr == (
+        "Error: reachability graph of C(100,100,1,1) has more than 1,000 states; raise "
+        "--state-limit or choose a smaller system (the closed formula predicts about 10^58 "
+        "states)\n"
+    )
+
+
+def test_explore_table() -> None:
+    result = runner.invoke(app, ["explore", "2,2,1,3"], env={"COLUMNS": "160"})
+    assert result.exit_code == 0, result.output
+    lines = result.stdout.splitlines()
+    assert lines[0].strip() == "C(2,2,1,3): explicit reachability graph (area 8, 4 tokens)"
+
+    def row(name: str) -> list[str]:
+        line = next(line for line in lines if line.startswith(f"│ {name} "))
+        return [cell.strip() for cell in line.strip("│").split("│")]
+
+    # theory.md §11 row C(2,2,1,3): 12 states, 16 edges [VERIFIED]
+    assert row("reachable states") == ["reachable states", "12", "formula 12: agree"]
+    assert row("reachability arcs") == ["reachability arcs", "16", "formula 16: agree"]
+    assert row("live")[1] == row("1-safe")[1] == row("reversible")[1] == "yes"
+    assert row("dead transitions")[1] == "none"
+    assert row("largest place bound")[1] == "1"
+    assert row("search time")[2] == "state limit 200,000"
+
+
+def test_explore_reports_a_formula_disagreement(monkeypatch: pytest.MonkeyPatch) -> None:
+    # A deliberately wrong closed formula must be caught by the explicit search.
+    import zoo.invariants
+
+    monkeypatch.setattr(zoo.invariants, "reachable_state_count", lambda p: 41)
+    result = runner.invoke(app, ["explore", "4,2,2,3", "--format", "json"])
+    assert result.exit_code == 1
+    assert json.loads(result.stdout)["states_agree"] is False
+    assert result.stderr == (
+        "Error: the explicit search of C(4,2,2,3) disagrees with the closed formulas (states 40 "
+        "vs 41, arcs 64 vs 64); this is a bug in zoo, please report it with this command line\n"
+    )
+
+
+@pytest.mark.parametrize(
+    ("args", "stderr"),
+    [
+        (["4,2,2"], "Error: a parameter set has four values (alpha, beta, gamma, delta), got 3 "
+                    "in '4,2,2'; write it as 4,2,2,3\n"),
+        (["FR16-2"], "Error: FR16-2 is a frame (an unmarked net, no initial marking); give a "
+                     "class such as CY16-1 or a parameter set\n"),
+        (["30000,1,1,1"], "Error: the net of C(30000,1,1,1) has 30,001 transitions, more than "
+                          "the explicit-net limit 20,000; choose a smaller system or use the "
+                          "closed formulas\n"),
+    ],
+)
+def test_explore_errors(args: list[str], stderr: str) -> None:
+    result = runner.invoke(app, ["explore", *args])
+    assert (result.exit_code, result.stderr, result.stdout) == (1, stderr, "")
+
+
+def test_explore_usage_errors() -> None:
+    result = runner.invoke(app, ["explore", "4,2,2,3", "--state-limit", "0"])
+    assert result.exit_code == 2 and "--state-limit" in result.stderr
+    result = runner.invoke(app, ["explore", "4,2,2,3", "--bogus"])
+    assert (result.exit_code, result.stderr) == (
+        2, "Error: no such option: --bogus; see zoo explore --help\n")
+
+
+def test_state_limit_defaults() -> None:
+    import inspect
+
+    from zoo.behaviour import DEFAULT_STATE_LIMIT
+    from zoo.cli.design import RING_STATE_LIMIT
+    from zoo.ring import simulation_report
+
+    ring_default = inspect.signature(simulation_report).parameters["max_states"].default
+    assert RING_STATE_LIMIT == ring_default
+    for command, default in (("explore", DEFAULT_STATE_LIMIT), ("ring", RING_STATE_LIMIT)):
+        result = runner.invoke(app, [command, "--help"], env={"COLUMNS": "200"})
+        assert result.exit_code == 0
+        line = next(line for line in result.stdout.splitlines() if "--state-limit  " in line)
+        assert f"[default: {default}]" in line, line
+
+
+def test_ring_simulation_takes_the_state_limit() -> None:
+    # theory.md §9: 2 anonymous items, 3 slots is C(3,2,1,1), 10 states and 15 arcs (§11).
+    ok = runner.invoke(app, ["ring", "-c", "2", "-g", "3", "--simulate", "--state-limit", "10",
+                             "--format", "json"])
+    assert ok.exit_code == 0, ok.output
+    assert json.loads(ok.stdout)["simulation"]["states"] == 10
+    result = runner.invoke(app, ["ring", "-c", "2", "-g", "3", "--simulate", "--state-limit", "9"])
+    assert (result.exit_code, result.stdout) == (1, "")
+    assert result.stderr == (
+        "Error: the simulated ring of 2 items and 3 slots (anonymous) has more than 9 states; "
+        "simulate a smaller ring or raise the state limit\n"
+    )

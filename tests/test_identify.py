@@ -553,3 +553,19 @@ def test_export_refuses_unknown_suffix_and_missing_catalog(tmp_path: Path) -> No
     result = runner.invoke(app, ["export", "CY16-3", "--db", str(tmp_path / "no.sqlite3")])
     assert result.exit_code == 1
     assert "Error: no catalog at" in result.output
+
+
+def test_stated_size_limits_match_the_constants() -> None:
+    # docs/identify.md and zoo/formats/__init__.py quote the canonical-form limit; a cycloid
+    # of area A has T + 2P = 5A encoding vertices (docs/architecture.md, canonical forms).
+    from zoo.canonical import CANONICAL_LIMIT
+    from zoo.formats import MAX_INPUT_BYTES
+
+    largest_area = CANONICAL_LIMIT // 5
+    page = (Path(__file__).resolve().parent.parent / "docs" / "identify.md").read_text("utf-8")
+    assert f"up to {CANONICAL_LIMIT:,} encoding vertices" in page
+    assert f"cycloids up to area {largest_area:,};" in page
+    # The largest identifiable cycloid, exported by zoo itself, is far below the input limit.
+    p = ParameterSet(1, 1, 1, largest_area - 1)
+    assert p.area == largest_area
+    assert 10 * len(pnml_document(build_net(p)).encode()) <= MAX_INPUT_BYTES

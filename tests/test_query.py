@@ -28,9 +28,9 @@ from zoo.query import (
     parse_query,
     parse_sort_key,
     referenced_area_bound,
-    render_query_docs,
     tokenize,
 )
+from zoo.querydocs import REGENERATE_COMMAND, render_query_docs
 
 DOCS = Path(__file__).resolve().parent.parent / "docs" / "query-language.md"
 FIELD_LIST = (
@@ -492,9 +492,7 @@ def test_issue_fields_are_present() -> None:
 
 def test_committed_docs_page_is_generated_from_the_registry() -> None:
     assert DOCS.read_text(encoding="utf-8") == render_query_docs(), (
-        "docs/query-language.md is stale; regenerate it with: .venv/bin/python -c "
-        '"from zoo.query import render_query_docs; '
-        "open('docs/query-language.md', 'w').write(render_query_docs())\""
+        f"docs/query-language.md is stale; regenerate it with: {REGENERATE_COMMAND}"
     )
 
 

@@ -22,7 +22,7 @@ from typer.testing import CliRunner
 from zoo.catalog import Catalog
 from zoo.cite import catalog_version
 from zoo.cli import app
-from zoo.errors import FormatError, ZooError
+from zoo.errors import CatalogError, FormatError, ZooError
 from zoo.release import (
     CHECKSUMS_NAME,
     MANIFEST_NAME,
@@ -212,3 +212,52 @@ def test_dump_from_each_database(db_url: str, tmp_path: Path) -> None:
         total = sum(s.classes for s in catalog.stats())
         lines = list(iter_dump_lines(iter_catalog_entries(catalog), "jsonl"))
     assert len(lines) == total > 0
+
+
+def test_missing_or_damaged_areas_are_refused(catalog_path: str, tmp_path: Path) -> None:
+    import sqlite3
+
+    with Catalog.open(catalog_path) as catalog:
+        with pytest.raises(CatalogError, match="area 13 is not stored completely"):
+            list(iter_catalog_entries(catalog, [13]))
+    damaged = tmp_path / "damaged.sqlite3"
+    shutil.copy(catalog_path, damaged)
+    with sqlite3.connect(damaged) as connection:  # remove one class of area 12 by hand
+        for table in ("parameter_sets", "readings"):
+            connection.execute(f"DELETE FROM {table} WHERE class_id = 'CY12-2'")
+        connection.execute("UPDATE seeds SET class_id = NULL WHERE class_id = 'CY12-2'")
+        connection.execute("DELETE FROM classes WHERE id = 'CY12-2'")
+    with Catalog.open(str(damaged)) as catalog:
+        entries = iter_catalog_entries(catalog, [12], batch=1)
+        assert next(entries).id == "CY12-1"
+        with pytest.raises(CatalogError, match="classes of area 12 .* damaged"):
+            list(entries)
+
+
+@pytest.mark.parametrize(
+    "command",
+    [
+        ["dump", "--format", "csv", "--output", "/proc/zoo-x.csv"],
+        ["release", "--output", "/proc/zoo-rel"],
+        ["draw", "4,2,2,3", "--output", "/proc/zoo-x.svg"],
+    ],
+)
+def test_unwritable_output_is_one_error_line(command: list[str], catalog_path: str) -> None:
+    """/proc accepts no new files (Linux procfs, common practice): an error, not a traceback."""
+    extra = [] if command[0] == "draw" else ["--db", catalog_path]
+    result = CliRunner().invoke(app, [*command, *extra])
+    assert result.exit_code == 1, result.output
+    assert result.exception is None or isinstance(result.exception, SystemExit)
+    target = command[command.index("--output") + 1]
+    lines = result.stderr.strip().splitlines()
+    assert len(lines) == 1
+    assert lines[0].startswith(f"Error: cannot write '{target}': ")
+    assert lines[0].endswith("; choose a writable location")
+
+
+def test_unwritable_output_from_the_library(tmp_path: Path) -> None:
+    from zoo.release import OutputNotWritable, write_bytes_atomically
+
+    with pytest.raises(OutputNotWritable, match="cannot write '/proc/zoo-y.txt'"):
+        write_bytes_atomically(Path("/proc/zoo-y.txt"), b"x")
+    assert isinstance(OutputNotWritable("x"), ZooError)

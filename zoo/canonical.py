@@ -393,10 +393,33 @@ def isomorphism(
 
     Returns (transition map, place map): ``transition_map[i]`` is the transition of g2 that
     transition i of g1 goes to, likewise for places. The map is read off the two canonical
-    labellings and checked arc by arc before it is returned.
+    labellings and checked arc by arc before it is returned (``isomorphism_from_forms``).
     """
     form1 = canonical_form(g1, marked, typed, colours1)
     form2 = canonical_form(g2, marked, typed, colours2)
+    return isomorphism_from_forms(g1, form1, g2, form2, marked, typed, colours1, colours2)
+
+
+def isomorphism_from_forms(
+    g1: MarkedGraph,
+    form1: CanonicalForm,
+    g2: MarkedGraph,
+    form2: CanonicalForm,
+    marked: bool = True,
+    typed: bool = False,
+    colours1: Sequence[str] | None = None,
+    colours2: Sequence[str] | None = None,
+) -> tuple[tuple[int, ...], tuple[int, ...]] | None:
+    """The isomorphism g1 -> g2 read off two canonical forms already computed, or None.
+
+    ``form1`` and ``form2`` must be the forms of g1 and g2 at the level given by ``marked``,
+    ``typed`` and the colours; unequal texts mean "not isomorphic". Equal texts give the map
+    that sends the vertex at each canonical position of g1's encoding to the vertex at the same
+    position of g2's (transitions first, then the tails of the places:
+    docs/canonical-encoding.md), checked arc by arc. Callers that already hold both forms
+    (``zoo.identify``) use this directly: nauty is the expensive part, and on large symmetric
+    nets one call takes seconds.
+    """
     if form1.text != form2.text:
         return None
     n_t, n_p = g1.transition_count, g1.place_count
@@ -409,10 +432,13 @@ def isomorphism(
     keys2 = _place_colours(g2, typed, colours2)
     for j, k in enumerate(place_map):
         if (
-            g2.pre[k] != transition_map[g1.pre[j]]
+            not 0 <= k < n_p
+            or g2.pre[k] != transition_map[g1.pre[j]]
             or g2.post[k] != transition_map[g1.post[j]]
             or keys2[k] != keys1[j]
             or (marked and g2.tokens[k] != g1.tokens[j])
         ):
             raise ArithmeticError(f"canonical labellings of equal forms disagree at place {j}")
+    if sorted(transition_map) != list(range(n_t)) or sorted(place_map) != list(range(n_p)):
+        raise ArithmeticError("equal canonical forms but the vertex map is not a bijection")
     return transition_map, place_map

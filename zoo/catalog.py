@@ -1,4 +1,4 @@
-"""The catalog service: build, query and read the stored catalog of cycloid classes.
+"""The catalog service: open, query and read the stored catalog of cycloid classes.
 
 This is the Python API that the command line (``zoo/cli/catalog.py``), ``zoo show`` and
 ``zoo identify`` use (docs/architecture.md, "The catalog service")::
@@ -8,71 +8,67 @@ This is the Python API that the command line (``zoo/cli/catalog.py``), ``zoo sho
         catalog.build(40)
         result = catalog.find("processes = 3 and area < 30", sort="loop", limit=5)
         entry = catalog.get("CY16-3")          # or a label / any member: "C(4,2,2,3)"
+        for entry in catalog.iter_entries():   # every class, by area then rank, streamed
+            ...
 
-A build classifies one area at a time (``zoo.classify``, in worker processes when ``jobs`` > 1)
-and writes each area in one transaction together with its row in ``areas``; the writer is this
-process alone. So an interrupted build leaves complete areas only, the next build resumes with
-the first missing area, and building further never touches an area already stored: identifiers
-never change (design.md §2).
+Writing the catalog (enumeration, classification, the nauty check, one transaction per area,
+resuming) is ``zoo.build``; ``Catalog.build`` hands over to it.
 """
 
 from __future__ import annotations
 
-import multiprocessing
-import os
-import time
+import shlex
 from collections.abc import Iterable, Iterator, Sequence
-from dataclasses import dataclass, field
-from datetime import UTC, datetime
+from dataclasses import dataclass
 from fractions import Fraction
+from pathlib import Path
 from types import TracebackType
-from typing import Any, Protocol
+from typing import TYPE_CHECKING, Any
 
-from sqlalchemy import Engine, Table, and_, delete, func, inspect, select, update
+from sqlalchemy import Engine, and_, func, or_, select
 from sqlalchemy.engine import Connection
-from sqlalchemy.exc import IntegrityError, OperationalError
 
-from zoo import __version__
-from zoo.classify import AreaClassification, ClassSummary, classify_area
-from zoo.enumeration import parameter_set_count
 from zoo.errors import CatalogError, NotInCatalog, ParameterError
 from zoo.identifiers import Identifier, read_identifier
 from zoo.params import MAX_AREA, ParameterSet, parse_params
-from zoo.seeds import Seed, load_seed_directory
 from zoo.storage import database
 from zoo.storage.models import (
     AreaRecord,
+    Base,
     CatalogInfo,
     ClassRecord,
     FrameRecord,
     ParameterSetRecord,
     ReadingRecord,
     SeedRecord,
-    sortable_key,
 )
+
+if TYPE_CHECKING:
+    from zoo.build import BuildProgress, BuildReport
+    from zoo.seeds import Seed
 
 __all__ = [
     "DEFAULT_MAX_AREA",
     "AreaStats",
-    "BuildProgress",
-    "BuildReport",
     "Catalog",
     "ClassEntry",
     "FindResult",
     "FrameEntry",
     "SeedEntry",
-    "ensure_catalog",
+    "stored_class_id",
     "lookup_class_id",
 ]
 
 #: The area up to which ``zoo find`` builds a catalog when none exists yet (issue 3).
 DEFAULT_MAX_AREA = 100
-#: Readings get the explicit id area * READING_ID_STRIDE + index, so that the same build gives
-#: the same ids whatever was interrupted before (PostgreSQL sequences do not roll back).
-READING_ID_STRIDE = 100_000
-#: Largest area a build accepts: beyond it a full enumeration is hours of nauty work.
-MAX_BUILD_AREA = 2_000
 _CHUNK = 900  # bound parameters per IN (...) list, below SQLite's historical limit of 999
+
+_TABLES = Base.metadata.tables
+_AREAS = _TABLES["areas"]
+_FRAMES = _TABLES["frames"]
+_CLASSES = _TABLES["classes"]
+_READINGS = _TABLES["readings"]
+_SEEDS = _TABLES["seeds"]
 
 
 # --- value types ---------------------------------------------------------------------------
@@ -185,6 +181,8 @@ class FindResult:
     complete_to: int
     area_bound: int | None  # largest area the query can match, None if it leaves area open
     columns: tuple[dict[str, str | None], ...] = ()  # requested field values, per entry
+    #: The catalog's URL, so that a suggested ``zoo build`` names it (None: the default one).
+    location: str | None = None
 
     @property
     def reaches_beyond(self) -> bool:
@@ -198,41 +196,33 @@ class FindResult:
             note += (
                 f" Warning: the query reaches area {self.area_bound}; classes of areas "
                 f"{self.complete_to + 1}..{self.area_bound} are missing "
-                f"(extend with: zoo build --max-area {self.area_bound})."
+                f"({extend_advice(self.area_bound, self.location)})."
             )
         elif self.area_bound is None:
             note += " The query does not bound the area; larger areas are not in the answer."
         return note
 
 
-@dataclass(frozen=True)
-class BuildReport:
-    """What a build did: the areas it added and where the time went."""
+def build_command(max_area: int, location: str | None = None) -> str:
+    """The ``zoo build`` command that extends the catalog at ``location`` to ``max_area``.
 
-    added: tuple[int, ...]
-    complete_to: int
-    parameter_sets: int
-    readings: int
-    classes: int
-    frames: int
-    canonical_forms: int
-    wall_seconds: float
-    stage_seconds: dict[str, float] = field(default_factory=dict)
-    jobs: int = 1
-    seeds: int = 0
+    ``--db`` is named unless ``location`` is the catalog zoo opens anyway; the bound is capped
+    at the build limit ``zoo.build.MAX_BUILD_AREA``.
+    """
+    from zoo.build import MAX_BUILD_AREA
+
+    db = "" if location is None else database.db_option(location)
+    return f"zoo build --max-area {min(max_area, MAX_BUILD_AREA)}{db}"
 
 
-class BuildProgress(Protocol):
-    """Receives the progress of a build (the CLI draws a progress bar)."""
+def extend_advice(area: int, location: str | None = None) -> str:
+    """``extend with: zoo build ...``, saying so when ``area`` is beyond the build limit."""
+    from zoo.build import MAX_BUILD_AREA
 
-    def started(self, areas: Sequence[int], parameter_sets: int) -> None:
-        """The build will classify these areas holding this many parameter sets in total."""
-
-    def area_done(self, stats: AreaStats) -> None:
-        """One area was stored."""
-
-    def finished(self, report: BuildReport) -> None:
-        """The build ended normally."""
+    advice = f"extend with: {build_command(area, location)}"
+    if area > MAX_BUILD_AREA:
+        advice += f"; areas above the build limit {MAX_BUILD_AREA:,} cannot be built"
+    return advice
 
 
 # --- the service ---------------------------------------------------------------------------
@@ -241,11 +231,11 @@ class BuildProgress(Protocol):
 class Catalog:
     """An open catalog database (SQLite file or PostgreSQL URL); see the module docstring."""
 
-    def __init__(self, engine: Engine, url: str) -> None:
+    def __init__(self, engine: Engine, url: str, *, created: bool = False) -> None:
         self.engine = engine
         self.url = url
-        columns = inspect(engine).get_columns("frames")
-        self._frame_class_count = any(c["name"] == "class_count" for c in columns)
+        #: Whether this open created the catalog (``create=True`` on a missing one).
+        self.created = created
 
     # lifecycle
 
@@ -263,19 +253,40 @@ class Catalog:
                 shown = database.display_location(url)
                 raise CatalogError(
                     f"no catalog at {shown}; build one with: zoo build --max-area "
-                    f"{DEFAULT_MAX_AREA} --db {shown}"
+                    f"{DEFAULT_MAX_AREA} --db {shlex.quote(shown)}"
                 )
             database.upgrade(url)
+            created = True
+        else:
+            created = False
         engine = database.open_engine(url)
         try:
             database.require_current(engine)
         except CatalogError:
             engine.dispose()
             raise
-        return cls(engine, url)
+        return cls(engine, url, created=created)
 
     def close(self) -> None:
         self.engine.dispose()
+
+    def discard_if_unused(self) -> bool:
+        """Remove the catalog file this open created when nothing was ever stored in it.
+
+        A build that rejects its arguments calls this, so that ``zoo build --max-area 0
+        --db new.db`` leaves no empty catalog behind. Only a SQLite file created by this very
+        open, holding no area and no recorded encoding, is removed; True when it was.
+        """
+        if not self.created:
+            return False
+        file = database.sqlite_file(self.url)
+        if file is None or self.complete_areas() or self.stats() or "encoding" in self.info():
+            return False
+        self.engine.dispose()
+        for suffix in ("", "-wal", "-shm", "-journal"):
+            Path(f"{file}{suffix}").unlink(missing_ok=True)
+        self.created = False
+        return True
 
     def __enter__(self) -> Catalog:
         return self
@@ -324,251 +335,17 @@ class Catalog:
         *,
         seeds: Sequence[Seed] | None = None,
     ) -> BuildReport:
-        """Store every area 1..max_area that is not stored yet; one transaction per area.
+        """Store every area 1..max_area not stored yet: ``zoo.build.build_catalog`` on this."""
+        from zoo.build import build_catalog
 
-        ``jobs`` worker processes classify areas (nauty included); this process writes them in
-        increasing order. Areas already complete are never rewritten. ``seeds`` defaults to the
-        shipped seeds_data/; each is attached to its class when its area is stored. Raises
-        ``CatalogError`` (nothing stored for the failing area) when the classification and
-        nauty disagree.
-        """
-        started = time.perf_counter()
-        if isinstance(max_area, bool) or not isinstance(max_area, int) or max_area < 1:
-            raise ParameterError(f"--max-area must be a positive whole number, got {max_area!r}")
-        if max_area > MAX_BUILD_AREA:
-            raise ParameterError(
-                f"--max-area {max_area} is above the build limit {MAX_BUILD_AREA}; a full "
-                "enumeration that large takes days of nauty work, choose a smaller bound"
-            )
-        jobs = max(1, int(jobs))
-        seed_list = list(load_seed_directory() if seeds is None else seeds)
-        self._record_encoding()
-        done = set(self.complete_areas())
-        todo = [a for a in range(1, max_area + 1) if a not in done]
-        self._sync_seeds(seed_list)
-        stage = {"classify_algebra": 0.0, "classify_canonical": 0.0, "write": 0.0}
-        totals = {"parameter_sets": 0, "readings": 0, "classes": 0, "frames": 0, "forms": 0}
-        added: list[int] = []
-        if progress is not None:
-            progress.started(todo, sum(parameter_set_count(a) for a in todo))
-        seeds_by_area: dict[int, list[Seed]] = {}
-        for seed in seed_list:
-            seeds_by_area.setdefault(seed.params.area, []).append(seed)
-        for result in _iter_classified(todo, jobs):
-            write_started = time.perf_counter()
-            wrote = self._write_area(result, seeds_by_area.get(result.area, []))
-            write_seconds = time.perf_counter() - write_started
-            stage["classify_algebra"] += result.seconds.get("algebra", 0.0)
-            stage["classify_canonical"] += result.seconds.get("canonical", 0.0)
-            stage["write"] += write_seconds
-            if not wrote:
-                continue  # a concurrent build stored it first
-            added.append(result.area)
-            totals["parameter_sets"] += result.parameter_set_count
-            totals["readings"] += result.reading_count
-            totals["classes"] += len(result.classes)
-            totals["frames"] += len(result.frames)
-            totals["forms"] += result.canonical_forms
-            if progress is not None:
-                progress.area_done(
-                    AreaStats(
-                        result.area,
-                        result.parameter_set_count,
-                        result.reading_count,
-                        len(result.classes),
-                        len(result.frames),
-                    )
-                )
-        report = BuildReport(
-            added=tuple(added),
-            complete_to=self.complete_to(),
-            parameter_sets=totals["parameter_sets"],
-            readings=totals["readings"],
-            classes=totals["classes"],
-            frames=totals["frames"],
-            canonical_forms=totals["forms"],
-            wall_seconds=time.perf_counter() - started,
-            stage_seconds=stage,
-            jobs=jobs,
-            seeds=len(seed_list),
-        )
-        if progress is not None:
-            progress.finished(report)
-        return report
-
-    def _record_encoding(self) -> None:
-        """Record the fingerprint encoding; refuse to mix encodings in one catalog."""
-        from zoo.canonical import ENCODING_VERSION
-
-        with self.engine.begin() as connection:
-            row = connection.execute(
-                select(CatalogInfo.value).where(CatalogInfo.key == "encoding")
-            ).first()
-            if row is None:
-                connection.execute(
-                    _table(CatalogInfo).insert(), [{"key": "encoding", "value": ENCODING_VERSION}]
-                )
-            elif row[0] != ENCODING_VERSION:
-                raise CatalogError(
-                    f"catalog {self.location} holds fingerprints of encoding {row[0]}, this zoo "
-                    f"computes {ENCODING_VERSION}; build a new catalog with --db NEW_FILE "
-                    "(mixing encodings would make fingerprints incomparable)"
-                )
-            _put_info(connection, "built_by", __version__)
-
-    def _sync_seeds(self, seeds: Sequence[Seed]) -> None:
-        """Make the seeds table equal to the seed files, linking seeds of stored areas."""
-        table = _table(SeedRecord)
-        wanted = {s.name: s for s in seeds}
-        with self.engine.begin() as connection:
-            stored = {row.name: row for row in connection.execute(select(table))}
-            gone = sorted(set(stored) - set(wanted))
-            if gone:
-                connection.execute(delete(table).where(table.c.name.in_(gone)))
-            for name, seed in wanted.items():
-                class_id = _class_id_of(connection, seed.params)
-                values = {
-                    "name": name,
-                    "description": seed.description,
-                    "alpha": seed.params.alpha,
-                    "beta": seed.params.beta,
-                    "gamma": seed.params.gamma,
-                    "delta": seed.params.delta,
-                    "class_id": class_id,
-                }
-                old = stored.get(name)
-                if old is None:
-                    connection.execute(table.insert(), [values])
-                elif any(getattr(old, k) != v for k, v in values.items()):
-                    connection.execute(update(table).where(table.c.name == name).values(**values))
-
-    def _write_area(self, result: AreaClassification, seeds: Sequence[Seed]) -> bool:
-        """Store one area in one transaction; False if it was already complete."""
-        started = time.perf_counter()
-        area = result.area
-        try:
-            with self.engine.begin() as connection:
-                row = connection.execute(
-                    select(AreaRecord.complete).where(AreaRecord.area == area)
-                ).first()
-                if row is not None and row[0]:
-                    return False
-                if row is not None:  # an incomplete leftover: replace it whole
-                    _delete_area(connection, area)
-                self._insert_area_rows(connection, result)
-                for seed in seeds:
-                    connection.execute(
-                        update(_table(SeedRecord))
-                        .where(_table(SeedRecord).c.name == seed.name)
-                        .values(class_id=_class_id_of(connection, seed.params))
-                    )
-                connection.execute(
-                    _table(AreaRecord).insert(),
-                    [
-                        {
-                            "area": area,
-                            "complete": True,
-                            "parameter_sets": result.parameter_set_count,
-                            "readings": result.reading_count,
-                            "classes": len(result.classes),
-                            "frames": len(result.frames),
-                            "built_at": datetime.now(UTC),
-                            "seconds": sum(result.seconds.values())
-                            + (time.perf_counter() - started),
-                        }
-                    ],
-                )
-        except (IntegrityError, OperationalError) as exc:
-            # Another build may have stored this area meanwhile; anything else is an error.
-            if area in self.complete_areas():
-                return False
-            reason = str(getattr(exc, "orig", exc)).strip().splitlines()[0]
-            raise CatalogError(
-                f"cannot store area {area} in catalog {self.location}: {reason}; nothing of "
-                "this area was stored (if another build writes the same catalog, run one at a "
-                "time, then build again to resume)"
-            ) from None
-        return True
-
-    def _insert_area_rows(self, connection: Connection, result: AreaClassification) -> None:
-        frames = []
-        for frame in result.frames:
-            row: dict[str, object] = {
-                "id": frame.id,
-                "area": frame.area,
-                "rank": frame.rank,
-                "label": str(frame.label),
-                "fingerprint": frame.fingerprint,
-                "automorphisms": str(frame.automorphisms),
-                "automorphisms_key": sortable_key(frame.automorphisms),
-                "lattice_g": frame.lattice_g,
-                "lattice_r": frame.lattice_r,
-            }
-            if self._frame_class_count:
-                row["class_count"] = len(frame.class_ids)
-            frames.append(row)
-        classes = [_class_row(c) for c in result.classes]
-        readings: list[dict[str, object]] = []
-        parameter_sets: list[dict[str, object]] = []
-        index = 0
-        for summary in result.classes:
-            for reading in summary.readings:
-                index += 1
-                if index >= READING_ID_STRIDE:
-                    raise CatalogError(
-                        f"area {result.area} has more than {READING_ID_STRIDE - 1} readings, "
-                        "more than the reading ids of this schema allow"
-                    )
-                reading_id = result.area * READING_ID_STRIDE + index
-                readings.append(
-                    {
-                        "id": reading_id,
-                        "class_id": summary.id,
-                        "area": result.area,
-                        "alpha": reading.alpha,
-                        "beta": reading.beta,
-                        "lattice_g": reading.lattice_g,
-                        "lattice_r": reading.lattice_r,
-                        "processes": reading.processes,
-                        "regular": reading.regular,
-                        "slowness_num": reading.slowness.numerator,
-                        "slowness_den": reading.slowness.denominator,
-                        "forward_count": reading.forward.count,
-                        "forward_length": reading.forward.length,
-                        "forward_tokens": reading.forward.tokens,
-                        "backward_count": reading.backward.count,
-                        "backward_length": reading.backward.length,
-                        "backward_tokens": reading.backward.tokens,
-                        "nf_beta_delta": str(reading.nf_beta_delta),
-                        "nf_alpha_gamma": str(reading.nf_alpha_gamma),
-                    }
-                )
-                parameter_sets.extend(
-                    {
-                        "alpha": p.alpha,
-                        "beta": p.beta,
-                        "gamma": p.gamma,
-                        "delta": p.delta,
-                        "area": result.area,
-                        "reading_id": reading_id,
-                        "class_id": summary.id,
-                    }
-                    for p in reading.members
-                )
-        for model, rows in (
-            (FrameRecord, frames),
-            (ClassRecord, classes),
-            (ReadingRecord, readings),
-            (ParameterSetRecord, parameter_sets),
-        ):
-            _bulk_insert(connection, _table(model), rows)
+        return build_catalog(self, max_area, jobs, progress, seeds=seeds)
 
     # reading
 
     def stats(self) -> list[AreaStats]:
         """Counts per stored area, in increasing area."""
         with self.engine.connect() as connection:
-            rows = connection.execute(select(_table(AreaRecord)).order_by(AreaRecord.area))
+            rows = connection.execute(select(_AREAS).order_by(AreaRecord.area))
             return [
                 AreaStats(
                     r.area, r.parameter_sets, r.readings, r.classes, r.frames, r.complete, r.seconds
@@ -579,7 +356,7 @@ class Catalog:
     def class_for_params(self, p: ParameterSet) -> ClassEntry | None:
         """The entry of the class holding p, or None when p's area is not stored."""
         with self.engine.connect() as connection:
-            class_id = _class_id_of(connection, p)
+            class_id = stored_class_id(connection, p)
             if class_id is None:
                 return None
             return self._entries(connection, [class_id])[0]
@@ -632,7 +409,7 @@ class Catalog:
             )
         with self.engine.connect() as connection:
             row = connection.execute(
-                select(_table(FrameRecord)).where(FrameRecord.id == str(identifier))
+                select(_FRAMES).where(FrameRecord.id == str(identifier))
             ).first()
             if row is None:
                 raise self._missing(identifier)
@@ -657,21 +434,19 @@ class Catalog:
     def seeds(self) -> list[SeedEntry]:
         """Every seed stored in the catalog, by name."""
         with self.engine.connect() as connection:
-            rows = connection.execute(select(_table(SeedRecord)).order_by(SeedRecord.name))
+            rows = connection.execute(select(_SEEDS).order_by(SeedRecord.name))
             return [_seed_entry(r) for r in rows]
 
     def _missing(self, identifier: Identifier) -> NotInCatalog:
         complete = self.complete_to()
         if identifier.area > complete and identifier.area not in self.complete_areas():
             return self._missing_area(identifier.area, str(identifier))
-        table = ClassRecord if identifier.kind == "class" else FrameRecord
+        kind = "classes" if identifier.kind == "class" else "frames"
+        table = _TABLES[kind]
         with self.engine.connect() as connection:
             count = connection.execute(
-                select(func.count()).select_from(_table(table)).where(
-                    _table(table).c.area == identifier.area
-                )
+                select(func.count()).select_from(table).where(table.c.area == identifier.area)
             ).scalar_one()
-        kind = "classes" if identifier.kind == "class" else "frames"
         return NotInCatalog(
             f"{identifier} does not exist: area {identifier.area} has {count} {kind}, "
             f"ranked 1..{count}"
@@ -681,7 +456,7 @@ class Catalog:
         complete = self.complete_to()
         return NotInCatalog(
             f"{what} has area {area}, beyond the catalog {self.location}, which is complete up "
-            f"to area {complete}; extend it with: zoo build --max-area {area}"
+            f"to area {complete}; {extend_advice(area, self.url).replace('with:', 'it with:')}"
         )
 
     # queries
@@ -717,7 +492,16 @@ class Catalog:
             complete_to=self.complete_to(),
             area_bound=None if node is None else referenced_area_bound(node),
             columns=tuple(values.get(e.id, {}) for e in entries),
+            location=self.url,
         )
+
+    def completeness_note(self, query: str) -> str:
+        """The completeness sentence of ``FindResult`` for a query, without running it."""
+        from zoo.query import parse_query, referenced_area_bound
+
+        bound = referenced_area_bound(parse_query(query)) if query.strip() else None
+        result = FindResult(query, (), 0, self.complete_to(), bound, location=self.url)
+        return result.completeness_note()
 
     def count(self, query: str, *, seed: str | None = None) -> int:
         """How many classes match a query."""
@@ -725,6 +509,38 @@ class Catalog:
 
         node = parse_query(query) if query.strip() else None
         return _query_count(self.engine, node, seed)
+
+    def iter_entries(
+        self, areas: Iterable[int] | None = None, *, batch_size: int = 500
+    ) -> Iterator[ClassEntry]:
+        """Every stored class (or those of the given areas), by area, then rank, streamed.
+
+        Entries are loaded ``batch_size`` at a time (by keyset on the unique (area, rank), each
+        batch on its own connection), so memory holds one batch however large the catalog, and
+        no read transaction stays open while the caller works. An area that is not stored
+        yields nothing; ``complete_areas()`` says which are.
+        """
+        if isinstance(batch_size, bool) or not isinstance(batch_size, int) or batch_size < 1:
+            raise ParameterError(f"batch_size must be a positive whole number, got {batch_size!r}")
+        classes = _CLASSES
+        for area in [None] if areas is None else areas:
+            after = (0, 0)  # (area, rank) of the last entry yielded; ranks start at 1
+            while True:
+                statement = select(classes.c.id, classes.c.area, classes.c.rank).where(
+                    # (area, rank) > after, written so that an index on (area, rank) serves it
+                    classes.c.area >= after[0],
+                    or_(classes.c.area > after[0], classes.c.rank > after[1]),
+                )
+                if area is not None:
+                    statement = statement.where(classes.c.area == area)
+                statement = statement.order_by(classes.c.area, classes.c.rank).limit(batch_size)
+                with self.engine.connect() as connection:
+                    rows = connection.execute(statement).all()
+                    entries = self._entries(connection, [row.id for row in rows])
+                yield from entries
+                if len(rows) < batch_size:
+                    break
+                after = (rows[-1].area, rows[-1].rank)
 
     def _entries(self, connection: Connection, ids: Sequence[str]) -> list[ClassEntry]:
         """Load whole entries for class ids, in the order given (missing ids are skipped)."""
@@ -734,17 +550,15 @@ class Catalog:
         readings: dict[str, list[Any]] = {}
         members_of_reading: dict[int, list[tuple[int, int, int, int]]] = {}
         seeds: dict[str, list[SeedEntry]] = {}
-        class_table = _table(ClassRecord)
-        frame_table = _table(FrameRecord)
         for chunk in _chunks(list(ids)):
             for row in connection.execute(
-                select(class_table, frame_table.c.automorphisms.label("net_automorphisms"))
-                .join(frame_table, frame_table.c.id == class_table.c.frame_id)
-                .where(class_table.c.id.in_(chunk))
+                select(_CLASSES, _FRAMES.c.automorphisms.label("net_automorphisms"))
+                .join(_FRAMES, _FRAMES.c.id == _CLASSES.c.frame_id)
+                .where(_CLASSES.c.id.in_(chunk))
             ):
                 classes[row.id] = row
             for row in connection.execute(
-                select(_table(ReadingRecord))
+                select(_READINGS)
                 .where(ReadingRecord.class_id.in_(chunk))
                 .order_by(ReadingRecord.id)
             ):
@@ -760,7 +574,7 @@ class Catalog:
             ):
                 members_of_reading.setdefault(reading_id, []).append((alpha, beta, gamma, delta))
             for row in connection.execute(
-                select(_table(SeedRecord)).where(SeedRecord.class_id.in_(chunk))
+                select(_SEEDS).where(SeedRecord.class_id.in_(chunk))
             ):
                 seeds.setdefault(row.class_id, []).append(_seed_entry(row))
         entries: list[ClassEntry] = []
@@ -811,125 +625,17 @@ def lookup_class_id(p: ParameterSet, location: str | None = None) -> str | None:
     try:
         database.require_current(engine)
         with engine.connect() as connection:
-            return _class_id_of(connection, p)
+            return stored_class_id(connection, p)
     finally:
         engine.dispose()
 
 
-def ensure_catalog(
-    location: str | None = None,
-    *,
-    max_area: int | None = None,
-    jobs: int | None = None,
-    progress: BuildProgress | None = None,
-) -> tuple[Catalog, BuildReport | None]:
-    """Open the catalog at location; when none exists yet, create and build it to max_area.
+def stored_class_id(connection: Connection, p: ParameterSet) -> str | None:
+    """The identifier of p's class over an open connection, None when p's area is not stored.
 
-    ``max_area`` defaults to ``DEFAULT_MAX_AREA`` (read at call time).
-
-    This is what makes ``zoo find`` work right after installation. An existing catalog is
-    never extended here (that is ``zoo build``'s decision).
+    The one query from a parameter set to its class; a build calls it inside its own write
+    transaction (``zoo.build``), where a fresh connection would not see the area yet.
     """
-    url = database.resolve_location(location)
-    if database.catalog_exists(url):
-        catalog = Catalog.open(location)
-        if catalog.complete_areas() or catalog.info().get("encoding"):
-            return catalog, None
-    else:
-        catalog = Catalog.open(location, create=True)
-    try:
-        bound = DEFAULT_MAX_AREA if max_area is None else max_area
-        report = catalog.build(bound, jobs=jobs or default_jobs(), progress=progress)
-    except BaseException:
-        catalog.close()
-        raise
-    return catalog, report
-
-
-def default_jobs() -> int:
-    """Worker processes for a build: the usable cores, at most 4 (the writer is one more)."""
-    try:
-        cores = len(os.sched_getaffinity(0))
-    except AttributeError:  # pragma: no cover - not Linux
-        cores = os.cpu_count() or 1
-    return max(1, min(4, cores))
-
-
-def _complete_prefix(areas: Iterable[int]) -> int:
-    stored = set(areas)
-    n = 0
-    while n + 1 in stored:
-        n += 1
-    return n
-
-
-def _iter_classified(areas: Sequence[int], jobs: int) -> Iterator[AreaClassification]:
-    """Classify areas in order, in ``jobs`` worker processes when that helps."""
-    if jobs <= 1 or len(areas) <= 1:
-        for area in areas:
-            yield classify_area(area)
-        return
-    methods = multiprocessing.get_all_start_methods()
-    context = multiprocessing.get_context("fork" if "fork" in methods else "spawn")
-    # Largest areas cost most: keep the pool busy with them while small ones stream through.
-    pool = context.Pool(processes=min(jobs, len(areas)))
-    try:
-        yield from pool.imap(classify_area, areas, chunksize=1)
-        pool.close()
-    finally:
-        pool.terminate()
-        pool.join()
-
-
-def _table(model: type[Any]) -> Table:
-    table = model.__table__
-    assert isinstance(table, Table)
-    return table
-
-
-def _bulk_insert(connection: Connection, table: Table, rows: list[dict[str, object]]) -> None:
-    """Insert many rows of the same keys; on SQLite straight through the driver's executemany.
-
-    Profiling the build showed SQLAlchemy's per-row parameter processing as most of the
-    writer's time on SQLite; the values here are plain ints, strings, bools and datetimes that
-    sqlite3 binds directly. Other databases take the ordinary SQLAlchemy path.
-    """
-    if not rows:
-        return
-    if connection.dialect.name != "sqlite":
-        connection.execute(table.insert(), rows)
-        return
-    keys = list(rows[0])
-    columns = ", ".join(f'"{key}"' for key in keys)
-    marks = ", ".join("?" for _ in keys)
-    connection.exec_driver_sql(
-        f'INSERT INTO "{table.name}" ({columns}) VALUES ({marks})',
-        [tuple(row[key] for key in keys) for row in rows],
-    )
-
-
-def _put_info(connection: Connection, key: str, value: str) -> None:
-    table = _table(CatalogInfo)
-    if connection.execute(select(table.c.key).where(table.c.key == key)).first() is None:
-        connection.execute(table.insert(), [{"key": key, "value": value}])
-    else:
-        connection.execute(update(table).where(table.c.key == key).values(value=value))
-
-
-def _delete_area(connection: Connection, area: int) -> None:
-    seeds = _table(SeedRecord)
-    classes = _table(ClassRecord)
-    connection.execute(
-        update(seeds)
-        .where(seeds.c.class_id.in_(select(classes.c.id).where(classes.c.area == area)))
-        .values(class_id=None)
-    )
-    for model in (ParameterSetRecord, ReadingRecord, ClassRecord, FrameRecord, AreaRecord):
-        table = _table(model)
-        connection.execute(delete(table).where(table.c.area == area))
-
-
-def _class_id_of(connection: Connection, p: ParameterSet) -> str | None:
     row = connection.execute(
         select(ParameterSetRecord.class_id).where(
             and_(
@@ -943,37 +649,12 @@ def _class_id_of(connection: Connection, p: ParameterSet) -> str | None:
     return None if row is None else str(row[0])
 
 
-def _class_row(c: ClassSummary) -> dict[str, object]:
-    label = c.label
-    return {
-        "id": c.id,
-        "area": c.area,
-        "rank": c.rank,
-        "label": str(label),
-        "label_alpha": label.alpha,
-        "label_beta": label.beta,
-        "label_gamma": label.gamma,
-        "label_delta": label.delta,
-        "frame_id": c.frame_id,
-        "fingerprint": c.fingerprint,
-        "loop": c.loop,
-        "states": str(c.states),
-        "states_key": sortable_key(c.states),
-        "state_arcs": str(c.state_arcs),
-        "state_arcs_key": sortable_key(c.state_arcs),
-        "automorphisms": str(c.automorphisms),
-        "automorphisms_key": sortable_key(c.automorphisms),
-        "tokens": c.tokens,
-        "enabled": c.enabled,
-        "semi_enabled": c.semi_enabled,
-        "cycle_time_num": c.cycle_time.numerator,
-        "cycle_time_den": c.cycle_time.denominator,
-        "group_d1": c.group_d1,
-        "cyclic": c.group_d1 == 1,
-        "iteration": c.iteration,
-        "reading_count": len(c.readings),
-        "member_count": sum(len(r.members) for r in c.readings),
-    }
+def _complete_prefix(areas: Iterable[int]) -> int:
+    stored = set(areas)
+    n = 0
+    while n + 1 in stored:
+        n += 1
+    return n
 
 
 def _fraction_text(numerator: int, denominator: int) -> str:
@@ -1052,10 +733,10 @@ def _matching_statement(node: Any, seed: str | None) -> Any:
     """``SELECT classes.id`` of the classes matching a query tree and a seed-name filter."""
     from zoo.storage.querysql import compile_query
 
-    classes = _table(ClassRecord)
+    classes = _CLASSES
     statement = compile_query(node) if node is not None else select(classes.c.id)
     if seed is not None:
-        seeds = _table(SeedRecord)
+        seeds = _SEEDS
         needle = seed.strip().lower()
         statement = statement.where(
             classes.c.id.in_(
@@ -1072,7 +753,7 @@ def _query_class_ids(
 ) -> tuple[list[str], int]:
     from zoo.storage.querysql import sort_clause
 
-    classes = _table(ClassRecord)
+    classes = _CLASSES
     statement = _matching_statement(node, seed)
     order = sort_clause(sort) if sort else (classes.c.area.asc(), classes.c.rank.asc())
     with engine.connect() as connection:
@@ -1109,7 +790,7 @@ def _column_values(
     names: list[str] = []
     for column in columns:
         names.extend(parse_field_names(column))
-    classes = _table(ClassRecord)
+    classes = _CLASSES
     values: dict[str, dict[str, str | None]] = {}
     if not ids or not names:
         return {class_id: {} for class_id in ids}

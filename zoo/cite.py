@@ -10,7 +10,10 @@ The *catalog version* has three parts, all read from the catalog itself:
 * the canonical-form encoding of its fingerprints (``catalog_info.encoding``);
 * the area to which it is complete (every area 1..N stored).
 
-Written ``zoo 0.1.0/v1/A<=12``. An identifier's meaning never changes (its area is stored
+Written ``zoo 0.1.0/v1/A<=12`` in manifests and JSON, and in words (``zoo 0.1.0, canonical
+encoding v1, complete to area 12``) in citations: BibTeX under LaTeX's default OT1 font
+encoding prints ``<`` as an inverted exclamation mark, so no BibTeX field carries ``<=``.
+An identifier's meaning never changes (its area is stored
 whole), so the version tells a reader which catalog they can look the entry up in, not a
 different meaning.
 
@@ -105,12 +108,12 @@ class Citation:
         fields: list[tuple[str, str]] = [
             ("title", f"{{{what} {self.identifier}: {self.label}}}"),
             ("author", "{zoo contributors}"),
-            ("howpublished", f"{CATALOG_TITLE}, catalog version {self.version}"),
+            ("howpublished", f"{CATALOG_TITLE}, catalog version {self.version.describe()}"),
         ]
         if self.year:
             fields.append(("year", str(self.year)))
         fields += [
-            ("version", str(self.version)),
+            ("version", self.version.describe()),
             (
                 "note",
                 f"Identifier {self.identifier}, label {self.label}, catalog version "

@@ -31,15 +31,11 @@ from collections import Counter, deque
 from collections.abc import Sequence
 from dataclasses import dataclass, field
 from pathlib import Path
-from typing import TYPE_CHECKING
 
 from zoo.errors import CatalogError
 from zoo.formats import PLACE, PlaceTransitionNet, read_net_file
 from zoo.net import MarkedGraph
 from zoo.params import ParameterSet
-
-if TYPE_CHECKING:
-    from zoo.canonical import CanonicalForm
 
 #: Largest net for which the quadratic diagnostics run (safeness by token distances, the
 #: shortest cycle through every transition). They only sharpen the reason a net is *not* a
@@ -465,7 +461,7 @@ def identify_net(
 
 
 def _identify(net: PlaceTransitionNet, location: str | None, use_catalog: bool) -> Identification:
-    from zoo.canonical import canonical_form
+    from zoo.canonical import canonical_form, isomorphism_from_forms
     from zoo.net import build_net
     from zoo.synthesis import synthesize
 
@@ -492,10 +488,11 @@ def _identify(net: PlaceTransitionNet, location: str | None, use_catalog: bool) 
         labels = [q for q in labels if closed_walk_counts(build_net(q), 0, length) == profile]
     for params in labels:
         target = build_net(params)
-        target_form = canonical_form(target, marked=True)
-        if target_form.text != form.text:
+        # Both forms are at hand, so the isomorphism costs no further nauty call.
+        mapping = isomorphism_from_forms(graph, form, target, canonical_form(target, marked=True))
+        if mapping is None:
             continue
-        transition_map, place_map = mapping_from_forms(graph, form, target, target_form)
+        transition_map, place_map = mapping
         class_id, status = (
             catalog_status(params, location, form.fingerprint)
             if use_catalog
@@ -549,35 +546,6 @@ def _missing_catalog_file(location: str | None) -> str | None:
         return None
     path = Path(value).expanduser() if value else default_catalog_path()
     return None if path.is_file() else f"no catalog at {path.absolute()}"
-
-
-def mapping_from_forms(
-    g1: MarkedGraph, form1: CanonicalForm, g2: MarkedGraph, form2: CanonicalForm
-) -> tuple[tuple[int, ...], tuple[int, ...]]:
-    """The isomorphism g1 -> g2 read off two equal canonical forms, checked arc by arc.
-
-    The same construction as ``zoo.canonical.isomorphism`` (the encoding graph numbers
-    transitions first, then the tails of the places: docs/canonical-encoding.md), but reusing
-    forms already computed: nauty is the expensive part, and on large symmetric nets one call
-    takes seconds.
-    """
-    n_t, n_p = g1.transition_count, g1.place_count
-    vertex_map = [0] * (n_t + 2 * n_p)
-    for v1, v2 in zip(form1.labelling, form2.labelling, strict=True):
-        vertex_map[v1] = v2
-    transition_map = tuple(vertex_map[:n_t])
-    place_map = tuple(vertex_map[n_t + j] - n_t for j in range(n_p))
-    for j, k in enumerate(place_map):
-        if (
-            not 0 <= k < n_p
-            or g2.pre[k] != transition_map[g1.pre[j]]
-            or g2.post[k] != transition_map[g1.post[j]]
-            or g2.tokens[k] != g1.tokens[j]
-        ):
-            raise ArithmeticError(f"equal canonical forms but no isomorphism at place {j}")
-    if sorted(transition_map) != list(range(n_t)) or sorted(place_map) != list(range(n_p)):
-        raise ArithmeticError("equal canonical forms but the vertex map is not a bijection")
-    return transition_map, place_map
 
 
 def catalog_status(

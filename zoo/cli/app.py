@@ -17,10 +17,30 @@ app = typer.Typer(
 )
 
 
-def fail(message: str) -> typer.Exit:
-    """Print ``Error: message`` on standard error and return the exit to raise."""
-    typer.echo(f"Error: {message}", err=True)
-    return typer.Exit(1)
+#: Exit status of a user error (bad input, missing catalog entry, limit exceeded, ...).
+USER_ERROR = 1
+#: Exit status of a command-line usage error (unknown option, missing argument), as click's.
+USAGE_ERROR = 2
+#: Exit status after Ctrl-C (128 + SIGINT, common practice for shells).
+INTERRUPTED = 130
+
+
+def fail(problem: str | ZooError, status: int = USER_ERROR) -> typer.Exit:
+    """Print ``Error: ...`` on standard error and return the exit to raise: ``raise fail(...)``.
+
+    The one way every command reports an error. A query syntax error also gets the query with
+    a caret under the offending text. The exit works both under typer's test runner and under
+    ``main`` (which runs the app outside standalone mode and exits with the returned status).
+    """
+    print_error(problem)
+    return typer.Exit(status)
+
+
+def print_error(problem: str | ZooError) -> None:
+    """Print ``Error: ...`` (and a query's caret line) without exiting, for a batch that goes on."""
+    typer.echo(f"Error: {problem}", err=True)
+    if isinstance(problem, QuerySyntaxError) and problem.query:
+        typer.echo(problem.caret_text(), err=True)
 
 
 def main() -> None:
@@ -30,31 +50,28 @@ def main() -> None:
     try:
         # Outside standalone mode an Exit raised by a command comes back as the return value.
         status = app(standalone_mode=False)
+        if status == INTERRUPTED:  # typer turns Ctrl-C inside a command into Exit(130)
+            typer.echo("Interrupted.", err=True)
         if isinstance(status, int) and status:
             sys.exit(status)
-    except QuerySyntaxError as exc:
-        typer.echo(f"Error: {exc}", err=True)
-        if exc.query:
-            typer.echo(exc.caret_text(), err=True)
-        sys.exit(1)
-    except ZooError as exc:
-        typer.echo(f"Error: {exc}", err=True)
-        sys.exit(1)
+    except ZooError as exc:  # a command that let one through: still one line, no traceback
+        print_error(exc)
+        sys.exit(USER_ERROR)
     except KeyboardInterrupt:
         typer.echo("Interrupted.", err=True)
-        sys.exit(130)
+        sys.exit(INTERRUPTED)
     except typer.Exit as exc:
         sys.exit(exc.exit_code)
     except typer.Abort:
         typer.echo("Aborted.", err=True)
-        sys.exit(1)
+        sys.exit(USER_ERROR)
     except typer.TyperException as exc:  # usage errors arrive here in non-standalone mode
         show = getattr(exc, "show", None)
         if callable(show):
             show()
         else:
             typer.echo(f"Error: {exc}", err=True)
-        sys.exit(getattr(exc, "exit_code", 2))
+        sys.exit(getattr(exc, "exit_code", USAGE_ERROR))
 
 
 @app.callback()

@@ -19,12 +19,20 @@ from typing import TYPE_CHECKING, Annotated, Any
 import typer
 
 from zoo.cli.app import app, fail
-from zoo.errors import ParameterError, QuerySyntaxError, ZooError
+from zoo.cli.common import (
+    CatalogOption,
+    ReadOnlyCatalogOption,
+    TableOrJson,
+    number_text,
+    print_json,
+)
+from zoo.errors import ParameterError, ZooError
 
 if TYPE_CHECKING:
     from rich.progress import Progress, TaskID
 
-    from zoo.catalog import AreaStats, BuildReport, Catalog, ClassEntry, FindResult
+    from zoo.build import BuildReport
+    from zoo.catalog import AreaStats, Catalog, ClassEntry, FindResult
 
 
 class FindFormat(StrEnum):
@@ -36,21 +44,6 @@ class FindFormat(StrEnum):
     jsonl = "jsonl"
 
 
-class StatsFormat(StrEnum):
-    """How ``stats`` prints its answer."""
-
-    table = "table"
-    json = "json"
-
-
-DbOption = Annotated[
-    str | None,
-    typer.Option(
-        "--db",
-        help="Catalog file or database URL (postgresql+psycopg://...). Default: $ZOO_CATALOG, "
-        "else catalog.sqlite3 in the user data directory.",
-    ),
-]
 JobsOption = Annotated[
     int | None,
     typer.Option(
@@ -177,7 +170,7 @@ def _run_build(build: Any) -> BuildReport:
         bar.stop()
         for line in exc.report:
             typer.echo(f"  {line}", err=True)
-        raise fail(str(exc)) from None
+        raise fail(exc) from None
     except KeyboardInterrupt:
         bar.stop()
         typer.echo(
@@ -188,7 +181,7 @@ def _run_build(build: Any) -> BuildReport:
         raise  # the entry point prints "Interrupted." and exits with status 130
     except ZooError as exc:
         bar.stop()
-        raise fail(str(exc)) from None
+        raise fail(exc) from None
     return report
 
 
@@ -205,7 +198,7 @@ def build(
             help="Store every parameter set of area at most N (areas already stored are kept).",
         ),
     ] = 100,
-    db: DbOption = None,
+    db: CatalogOption = None,
     jobs: JobsOption = None,
 ) -> None:
     """Enumerate, classify and store every cycloid up to an area; resumes where it stopped.
@@ -213,12 +206,13 @@ def build(
     Each area is stored in one transaction, so an interrupted build keeps every area it
     finished. Example: zoo build --max-area 60 --jobs 2
     """
-    from zoo.catalog import Catalog, default_jobs
+    from zoo.build import default_jobs
+    from zoo.catalog import Catalog
 
     try:
         catalog = Catalog.open(db, create=True)
     except ZooError as exc:
-        raise fail(str(exc)) from None
+        raise fail(exc) from None
     try:
         report = _run_build(
             lambda bar: catalog.build(max_area, jobs=jobs or default_jobs(), progress=bar)
@@ -269,7 +263,7 @@ def find(
             "--seed", help="Keep only classes with a seed whose name contains this text."
         ),
     ] = None,
-    db: DbOption = None,
+    db: CatalogOption = None,
     jobs: JobsOption = None,
 ) -> None:
     """Find the catalog classes that match a query.
@@ -278,7 +272,7 @@ def find(
     Example: zoo find "processes = 3 and area < 100" --sort -states --limit 10
     """
     from zoo import catalog as catalog_service
-    from zoo.catalog import ensure_catalog
+    from zoo.build import ensure_catalog
     from zoo.storage.database import catalog_exists, display_location, resolve_location
 
     try:
@@ -317,13 +311,8 @@ def find(
             result = catalog.find(query, sort=sort, limit=limit, seed=seed, columns=columns)
         finally:
             catalog.close()
-    except QuerySyntaxError as exc:
-        typer.echo(f"Error: {exc}", err=True)
-        if exc.query:
-            typer.echo(exc.caret_text(), err=True)
-        raise typer.Exit(1) from None
-    except ZooError as exc:
-        raise fail(str(exc)) from None
+    except ZooError as exc:  # a query syntax error also gets its caret line
+        raise fail(exc) from None
     _print_find(result, fmt, columns)
 
 
@@ -447,7 +436,7 @@ def _print_find(result: FindResult, fmt: FindFormat, columns: Sequence[str] | No
         else:
             objects.append(entry.as_dict())
     if fmt is FindFormat.json:
-        typer.echo(json.dumps(objects, indent=2, ensure_ascii=False))
+        print_json(objects)
     else:
         for item in objects:
             typer.echo(json.dumps(item, ensure_ascii=False))
@@ -490,8 +479,7 @@ def show_entry(ref: str, fmt: str, db: str | None) -> None:
             report["citation"] = citation
             report["complete_to"] = catalog.complete_to()
     if fmt == "json":
-        sys.set_int_max_str_digits(0)
-        typer.echo(json.dumps(report, indent=2, ensure_ascii=False))
+        print_json(report)
         return
     if "classes" in report:
         _print_frame_table(report)
@@ -503,11 +491,7 @@ def _number_text(value: object) -> str:
     if isinstance(value, bool):
         return "yes" if value else "no"
     if isinstance(value, int):
-        sys.set_int_max_str_digits(0)
-        digits = str(abs(value))
-        if len(digits) > 40:
-            return f"{digits[:12]}...{digits[-6:]} ({len(digits)} digits; exact in --format json)"
-        return f"{value:,}"
+        return number_text(value)
     if isinstance(value, list):
         return " x ".join(str(v) for v in value) if value else "-"
     return str(value)
@@ -594,13 +578,13 @@ def _print_frame_table(report: dict[str, Any]) -> None:
 @app.command("stats")
 def stats(
     fmt: Annotated[
-        StatsFormat, typer.Option("--format", "-f", help="table, or json (a list of objects).")
-    ] = StatsFormat.table,
+        TableOrJson, typer.Option("--format", "-f", help="table, or json (a list of objects).")
+    ] = TableOrJson.table,
     plot: Annotated[
         Path | None,
         typer.Option("--plot", dir_okay=False, help="Also draw the counts to a .png or .svg file."),
     ] = None,
-    db: DbOption = None,
+    db: ReadOnlyCatalogOption = None,
 ) -> None:
     """Per area: numbers of parameter sets, readings, classes and frames.
 
@@ -620,10 +604,10 @@ def stats(
         if plot is not None:
             draw_stats(rows, plot)
     except ZooError as exc:
-        raise fail(str(exc)) from None
+        raise fail(exc) from None
     note = f"The catalog is complete up to area {complete}."
-    if fmt is StatsFormat.json:
-        typer.echo(json.dumps([s.as_dict() for s in rows], indent=2))
+    if fmt is TableOrJson.json:
+        print_json([s.as_dict() for s in rows])
         typer.echo(note, err=True)
     else:
         from rich.table import Table
@@ -692,7 +676,7 @@ def draw_stats(rows: Sequence[AreaStats], path: Path) -> None:
 
 
 @app.command("migrate")
-def migrate(db: DbOption = None) -> None:
+def migrate(db: CatalogOption = None) -> None:
     """Create the catalog schema, or upgrade it to this zoo's revision (no data is lost).
 
     Example: zoo migrate --db catalog.sqlite3
@@ -703,7 +687,7 @@ def migrate(db: DbOption = None) -> None:
         url = database.resolve_location(db)
         change = database.upgrade(url)
     except ZooError as exc:
-        raise fail(str(exc)) from None
+        raise fail(exc) from None
     shown = database.display_location(url)
     if change.changed:
         typer.echo(f"Catalog {shown}: schema revision {change.before or 'none'} -> {change.after}.")

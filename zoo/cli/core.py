@@ -1,48 +1,37 @@
-"""Commands of zoo: ``show`` (every invariant of a parameter set) and ``compare`` (two of them).
+"""Commands of zoo: ``show`` (every invariant of a parameter set), ``compare`` (two of them) and
+``explore`` (the explicit reachability graph next to the closed formulas).
 
-A thin layer: the numbers come from ``zoo.report``; this module only parses arguments, asks the
-catalog for an identifier and formats the dicts as a rich table or as one JSON object.
+A thin layer: the numbers come from ``zoo.report``, ``zoo.behaviour`` and ``zoo.invariants``;
+this module only parses arguments, asks the catalog for an identifier and formats the dicts as
+a rich table or as one JSON object.
 """
 
 from __future__ import annotations
 
-import json
-import os
-import sys
-from enum import StrEnum
-from pathlib import Path
-from typing import Annotated, Any, NoReturn
+import time
+from collections.abc import Callable
+from typing import Annotated, Any
 
 import typer
 
-from zoo.cli.app import app
-from zoo.errors import CatalogError, ZooError
+from zoo.behaviour import DEFAULT_STATE_LIMIT
+from zoo.cli.app import app, fail
+from zoo.cli.common import (
+    LOOSE_ARGUMENTS,
+    ReadOnlyCatalogOption,
+    ReferenceArgument,
+    StateLimitOption,
+    TableOrJson,
+    TableOrJsonOption,
+    class_id_of,
+    number_text,
+    print_json,
+    print_property_table,
+    refuse_unknown_options,
+    resolve_params,
+)
+from zoo.errors import CatalogError, LimitExceeded, ZooError
 from zoo.params import ParameterSet, parse_params
-
-
-class OutputFormat(StrEnum):
-    """How ``show`` and ``compare`` print their answer."""
-
-    table = "table"
-    json = "json"
-
-
-FormatOption = Annotated[
-    OutputFormat,
-    typer.Option("--format", "-f", help="table: a readable table; json: one JSON object."),
-]
-DbOption = Annotated[
-    str | None,
-    typer.Option(
-        "--db",
-        help="Catalog file or database URL used to look up class identifiers "
-        "(default: $ZOO_CATALOG, else the user data directory). Never built or changed.",
-    ),
-]
-
-# Parameter sets such as -1,2,2,3 must reach our parser (which explains what is wrong) instead
-# of being taken for unknown options.
-_LOOSE = {"ignore_unknown_options": True}
 
 
 @app.command("version")
@@ -53,25 +42,17 @@ def version() -> None:
     print(__version__)
 
 
-@app.command("show", context_settings=_LOOSE)
+@app.command("show", context_settings=LOOSE_ARGUMENTS)
 def show(
-    ref: Annotated[
-        list[str],
-        typer.Argument(
-            metavar="PARAMS|ID",
-            help="A parameter set (4,2,2,3 or '4 2 2 3' or C(4,2,2,3)) or a catalog "
-            "identifier such as CY16-3.",
-            show_default=False,
-        ),
-    ],
-    fmt: FormatOption = OutputFormat.table,
-    db: DbOption = None,
+    ref: ReferenceArgument,
+    fmt: TableOrJsonOption = TableOrJson.table,
+    db: ReadOnlyCatalogOption = None,
 ) -> None:
     """Print every invariant of a parameter set, or the catalog entry of an identifier.
 
     Example: zoo show 4,2,2,3 --format json
     """
-    _refuse_unknown_options("show", ref)
+    refuse_unknown_options("show", ref)
     text = " ".join(ref)
     try:
         from zoo.identifiers import read_identifier
@@ -83,25 +64,20 @@ def show(
         from zoo.report import invariant_report
 
         report = invariant_report(p)
-        report["id"] = _class_id(p, db)
+        report["id"] = class_id_of(p, db)
     except ZooError as exc:
-        _exit_with_error(str(exc))
-    for note in report["notes"]:
-        typer.echo(f"Note: {note}", err=True)
-    if fmt is OutputFormat.json:
-        _print_json(report)
-    else:
-        _print_show_table(report)
+        raise fail(exc) from None
+    _print_report(report, fmt, _print_show_table)
 
 
-@app.command("compare", context_settings=_LOOSE)
+@app.command("compare", context_settings=LOOSE_ARGUMENTS)
 def compare(
     first: Annotated[str, typer.Argument(metavar="P1", help="First parameter set, e.g. 4,2,2,3.")],
     second: Annotated[
         str, typer.Argument(metavar="P2", help="Second parameter set, e.g. 2,4,3,2.")
     ],
-    fmt: FormatOption = OutputFormat.table,
-    db: DbOption = None,
+    fmt: TableOrJsonOption = TableOrJson.table,
+    db: ReadOnlyCatalogOption = None,
 ) -> None:
     """Decide whether two parameter sets are the same reading, class and frame, and on what basis.
 
@@ -109,43 +85,121 @@ def compare(
     isomorphic unmarked nets. Class and frame are decided by algebra and by nauty; if the two
     ever disagree the command says so and exits with status 1.
     """
-    _refuse_unknown_options("compare", [first, second])
+    refuse_unknown_options("compare", [first, second])
     try:
         p1, p2 = parse_params(first), parse_params(second)
         from zoo.report import compare_report, disagreement_message
 
         report = compare_report(p1, p2)
-        report["ids"] = [_class_id(p1, db), _class_id(p2, db)]
+        report["ids"] = [class_id_of(p1, db), class_id_of(p2, db)]
     except ZooError as exc:
-        _exit_with_error(str(exc))
-    for note in report["notes"]:
-        typer.echo(f"Note: {note}", err=True)
-    if fmt is OutputFormat.json:
-        _print_json(report)
-    else:
-        _print_compare_table(report)
+        raise fail(exc) from None
+    _print_report(report, fmt, _print_compare_table)
     alarm = disagreement_message(report)
     if alarm:
-        _exit_with_error(alarm)
+        raise fail(alarm)
 
 
-def _refuse_unknown_options(command: str, arguments: list[str]) -> None:
-    """Unknown options reach the arguments (so that -1,2,2,3 can); refuse them as usage errors."""
-    for argument in arguments:
-        if argument.startswith("-") and not argument[1:2].isdigit():
-            typer.echo(f"Error: no such option: {argument}; see zoo {command} --help", err=True)
-            raise SystemExit(2)
+@app.command("explore", context_settings=LOOSE_ARGUMENTS)
+def explore(
+    ref: ReferenceArgument,
+    state_limit: StateLimitOption = DEFAULT_STATE_LIMIT,
+    fmt: TableOrJsonOption = TableOrJson.table,
+    db: ReadOnlyCatalogOption = None,
+) -> None:
+    """Search the reachability graph explicitly and check it against the closed formulas.
 
+    Builds the net, visits every reachable marking from M0 (breadth first, at most
+    --state-limit states) and prints the explicit numbers of states and arcs beside the closed
+    formulas of zoo show, whether they agree, and liveness, 1-safeness, reversibility, dead
+    transitions, the largest place bound and the time taken. A disagreement would be a bug in
+    zoo: the command then exits with status 1. Explicit search is exponential in the tokens;
+    zoo show gives the counts of any size at once.
 
-def _exit_with_error(message: str) -> NoReturn:
-    """Print ``Error: message`` on standard error and exit with status 1.
-
-    SystemExit rather than typer.Exit: it ends the process with status 1 both under the console
-    entry point (which runs the app with standalone_mode=False, where typer.Exit only becomes a
-    return value) and under typer's test runner.
+    Example: zoo explore 4,2,2,3 --state-limit 1000
     """
-    typer.echo(f"Error: {message}", err=True)
-    raise SystemExit(1)
+    refuse_unknown_options("explore", ref)
+    try:
+        p = resolve_params(" ".join(ref), db)
+        report = exploration_report(p, state_limit)
+    except ZooError as exc:
+        raise fail(exc) from None
+    _print_report(report, fmt, _print_explore_table)
+    if not (report["states_agree"] and report["arcs_agree"]):
+        raise fail(
+            f"the explicit search of {p} disagrees with the closed formulas (states "
+            f"{report['states']:,} vs {report['formula_states']:,}, arcs {report['arcs']:,} vs "
+            f"{report['formula_arcs']:,}); this is a bug in zoo, please report it with this "
+            "command line"
+        )
+
+
+def exploration_report(p: ParameterSet, state_limit: int = DEFAULT_STATE_LIMIT) -> dict[str, Any]:
+    """What ``zoo explore`` prints, as a JSON-ready dict (keys in docs/explore.md).
+
+    The explicit side is zoo.behaviour's breadth-first search; the formulas are theory.md §10
+    (zoo.invariants). Raises LimitExceeded, naming --state-limit, when the search passes the
+    limit, with the number of states the formula predicts.
+    """
+    from zoo.behaviour import (
+        dead_transitions,
+        is_one_safe,
+        is_reversible,
+        place_bound,
+        reachability_graph,
+    )
+    from zoo.invariants import reachable_state_count, state_arc_count
+    from zoo.net import build_net
+
+    formula_states, formula_arcs = reachable_state_count(p), state_arc_count(p)
+    net = build_net(p)
+    started = time.perf_counter()
+    try:
+        rg = reachability_graph(net, state_limit)
+    except LimitExceeded as exc:
+        predicted = (
+            f"{formula_states:,}"
+            if formula_states < 10**15
+            else f"about 10^{len(str(formula_states)) - 1}"
+        )
+        raise LimitExceeded(f"{exc} (the closed formula predicts {predicted} states)") from None
+    dead = dead_transitions(rg)
+    facts = {
+        "live": not dead,
+        "one_safe": is_one_safe(rg),
+        "reversible": is_reversible(rg),
+        "dead_transitions": [net.transitions[t] for t in dead],
+        "bound": place_bound(rg),
+    }
+    seconds = time.perf_counter() - started
+    return {
+        "params": {"alpha": p.alpha, "beta": p.beta, "gamma": p.gamma, "delta": p.delta},
+        "label": str(p),
+        "area": p.area,
+        "places": net.place_count,
+        "tokens": net.token_count,
+        "state_limit": state_limit,
+        "states": rg.state_count,
+        "arcs": rg.arc_count,
+        "formula_states": formula_states,
+        "formula_arcs": formula_arcs,
+        "states_agree": rg.state_count == formula_states,
+        "arcs_agree": rg.arc_count == formula_arcs,
+        **facts,
+        "seconds": round(seconds, 6),
+    }
+
+
+def _print_report(
+    report: dict[str, Any], fmt: TableOrJson, print_table: Callable[[dict[str, Any]], None]
+) -> None:
+    """Notes on standard error, then the report as JSON or as the command's table."""
+    for note in report.get("notes", ()):
+        typer.echo(f"Note: {note}", err=True)
+    if fmt is TableOrJson.json:
+        print_json(report)
+    else:
+        print_table(report)
 
 
 def _show_catalog_entry(ref: str, fmt: str, db: str | None) -> None:
@@ -160,57 +214,40 @@ def _show_catalog_entry(ref: str, fmt: str, db: str | None) -> None:
     show_entry(ref, fmt, db)
 
 
-def _catalog_may_exist(db: str | None) -> bool:
-    """False when the catalog location is a file that does not exist (docs/architecture.md).
-
-    Importing the catalog service pulls in SQLAlchemy (about half a second); without a catalog
-    there is nothing to look up, so ``zoo show`` stays fast on a fresh installation.
-    """
-    location = (db or "").strip() or os.environ.get("ZOO_CATALOG", "").strip()
-    if location and "://" in location:
-        return True
-    if location:
-        return Path(location).expanduser().exists()
-    import platformdirs
-
-    return (Path(platformdirs.user_data_dir("zoo")) / "catalog.sqlite3").exists()
+def _seconds_text(seconds: float) -> str:
+    return f"{seconds * 1000:.1f} ms" if seconds < 1 else f"{seconds:.2f} s"
 
 
-def _class_id(p: ParameterSet, db: str | None) -> str | None:
-    """The catalog identifier of the class of p, or None; never builds a catalog.
-
-    An unreadable or outdated catalog must not hide the invariants, which need no catalog: its
-    error becomes a note on standard error and the identifier is null.
-    """
-    if not _catalog_may_exist(db):
-        return None
-    try:
-        from zoo.catalog import lookup_class_id
-    except ModuleNotFoundError as exc:  # the catalog service is optional for these commands
-        if exc.name != "zoo.catalog":
-            raise
-        return None
-    try:
-        return lookup_class_id(p, db)
-    except CatalogError as exc:
-        typer.echo(f"Note: no catalog identifier: {exc}", err=True)
-        return None
+def _yes_no(value: bool) -> str:
+    return "yes" if value else "no"
 
 
-def _print_json(report: dict[str, Any]) -> None:
-    # Reachable-state counts can have tens of thousands of digits; print them exactly.
-    sys.set_int_max_str_digits(0)
-    typer.echo(json.dumps(report, indent=2, ensure_ascii=False))
+def _print_explore_table(report: dict[str, Any]) -> None:
 
+    def agreement(agree: bool) -> str:
+        return "agree" if agree else "DISAGREE"
 
-def _number_text(value: int) -> str:
-    """A readable exact integer; very long ones are shortened (the JSON output is exact)."""
-    sys.set_int_max_str_digits(0)
-    digits = str(value)
-    if len(digits) <= 40:
-        return f"{value:,}"
-    mantissa = f"{digits[0]}.{digits[1:9]}e{len(digits) - 1}"
-    return f"{mantissa} ({len(digits):,} digits; exact in --format json)"
+    dead = report["dead_transitions"]
+    dead_text = (", ".join(dead[:8]) + (", …" if len(dead) > 8 else "")) if dead else "none"
+    rows: list[tuple[str, str, str]] = [
+        ("reachable states", number_text(report["states"]),
+         f"formula {number_text(report['formula_states'])}: "
+         f"{agreement(report['states_agree'])}"),
+        ("reachability arcs", number_text(report["arcs"]),
+         f"formula {number_text(report['formula_arcs'])}: {agreement(report['arcs_agree'])}"),
+        ("live", _yes_no(report["live"]), "every transition can always fire again"),
+        ("1-safe", _yes_no(report["one_safe"]), "no place ever holds two tokens"),
+        ("reversible", _yes_no(report["reversible"]), "M0 is reachable from every state"),
+        ("dead transitions", dead_text, "can stop firing for good"),
+        ("largest place bound", str(report["bound"]), "tokens on one place"),
+        ("search time", _seconds_text(report["seconds"]),
+         f"state limit {number_text(report['state_limit'])}"),
+    ]
+    title = (
+        f"{report['label']}: explicit reachability graph (area {report['area']}, "
+        f"{report['tokens']} tokens)"
+    )
+    print_property_table(title, ("property", "explicit search", "check"), rows)
 
 
 def _cycles_text(family: dict[str, int]) -> str:
@@ -246,13 +283,11 @@ def _or_dash(value: object) -> str:
     if value is None:
         return "—"
     if isinstance(value, int) and not isinstance(value, bool):
-        return _number_text(value)
+        return number_text(value)
     return str(value)
 
 
 def _print_show_table(report: dict[str, Any]) -> None:
-    from rich.console import Console
-    from rich.table import Table
 
     loop_note = (
         "lattice search = cyc₁"
@@ -267,8 +302,8 @@ def _print_show_table(report: dict[str, Any]) -> None:
         ("normal form αγ", report["normal_form_alpha_gamma"], "α/γ-steps"),
         ("lattice key (A,g,r)", "({},{},{})".format(*report["lattice_key"]), "Hermite basis"),
         ("transition group", _group_text(report["group"], report["class_group"]), "Smith form"),
-        ("area (transitions)", _number_text(report["area"]), "A = αδ + βγ"),
-        ("places", _number_text(report["places"]), "2A"),
+        ("area (transitions)", number_text(report["area"]), "A = αδ + βγ"),
+        ("places", number_text(report["places"]), "2A"),
         (
             "tokens",
             f"{report['tokens']} ({report['tokens_forward']} fwd, "
@@ -297,8 +332,8 @@ def _print_show_table(report: dict[str, Any]) -> None:
             _names_text(report["semi_enabled_transitions"], report["semi_enabled"]),
             "|α − β|",
         ),
-        ("reachable states", _number_text(report["states"]), "A·C(α+β,α)/(α+β)"),
-        ("reachability arcs", _number_text(report["state_arcs"]), "A·C(α+β−2,α−1)"),
+        ("reachable states", number_text(report["states"]), "A·C(α+β,α)/(α+β)"),
+        ("reachability arcs", number_text(report["state_arcs"]), "A·C(α+β−2,α−1)"),
         ("slowness", report["slowness"].removesuffix("/1"), "(α − β)/(α + β)"),
         ("cycle time", report["cycle_time"].removesuffix("/1"), "A/min(α,β)"),
         ("automorphisms (system)", _or_dash(report["automorphisms"]), "nauty"),
@@ -306,13 +341,7 @@ def _print_show_table(report: dict[str, Any]) -> None:
         ("fingerprint (system)", _or_dash(report["fingerprint"]), "nauty"),
         ("fingerprint (net)", _or_dash(report["net_fingerprint"]), "nauty"),
     ]
-    table = Table(title=report["label"], title_justify="left")
-    table.add_column("invariant", no_wrap=True)
-    table.add_column("value", overflow="fold")
-    table.add_column("how", style="dim")
-    for row in rows:
-        table.add_row(*row)
-    Console(soft_wrap=False).print(table)
+    print_property_table(report["label"], ("invariant", "value", "how"), rows)
 
 
 def _print_compare_table(report: dict[str, Any]) -> None:

@@ -7,7 +7,6 @@ resolves references through the catalog service and writes files.
 
 from __future__ import annotations
 
-import json
 import sys
 from enum import StrEnum
 from pathlib import Path
@@ -16,28 +15,26 @@ from typing import Annotated, Any
 import typer
 
 from zoo.cli.app import app, fail
-from zoo.errors import CatalogError, ZooError
-from zoo.params import ParameterSet, parse_params
+from zoo.cli.common import (
+    LOOSE_ARGUMENTS,
+    ReadOnlyCatalogOption,
+    ReferenceArgument,
+    StateLimitOption,
+    TableOrJson,
+    TableOrJsonOption,
+    class_id_of,
+    number_text,
+    print_json,
+    print_property_table,
+    refuse_unknown_options,
+    resolve_params,
+    write_file_atomically,
+)
+from zoo.errors import ZooError
 
-DbOption = Annotated[
-    str | None,
-    typer.Option(
-        "--db",
-        help="Catalog file or database URL (default: $ZOO_CATALOG, else the user data "
-        "directory). Read only: never built or changed.",
-    ),
-]
-
-# Parameter sets such as -1,2,2,3 must reach our parser (which explains what is wrong) instead
-# of being taken for unknown options.
-_LOOSE = {"ignore_unknown_options": True}
-
-
-class RingFormat(StrEnum):
-    """How ``ring`` prints its answer."""
-
-    table = "table"
-    json = "json"
+#: Default --state-limit of ``ring --simulate``: the default of zoo.ring.simulation_report
+#: (tests/test_cli_core.py keeps the two equal).
+RING_STATE_LIMIT = 20_000
 
 
 class PictureFormat(StrEnum):
@@ -73,54 +70,6 @@ class DumpFormat(StrEnum):
     jsonl = "jsonl"
 
 
-# --- shared helpers ---------------------------------------------------------------------
-
-
-def _print_json(value: object) -> None:
-    sys.set_int_max_str_digits(0)  # reachable-state counts can be very long; print them exactly
-    typer.echo(json.dumps(value, indent=2, ensure_ascii=False))
-
-
-def _class_id(p: ParameterSet, db: str | None) -> str | None:
-    """The catalog identifier of p's class, or None; never builds a catalog.
-
-    An unreadable catalog must not hide what needs no catalog: its error becomes a note.
-    """
-    from zoo.catalog import lookup_class_id
-
-    try:
-        return lookup_class_id(p, db)
-    except CatalogError as exc:
-        typer.echo(f"Note: no catalog identifier: {exc}", err=True)
-        return None
-
-
-def _resolve_params(ref: str, db: str | None) -> ParameterSet:
-    """A parameter set typed directly, or the label of a catalog identifier."""
-    from zoo.identifiers import read_identifier
-
-    if read_identifier(ref) is None:
-        return parse_params(ref)
-    from zoo.catalog import Catalog
-
-    catalog = Catalog.open(db)
-    try:
-        entry = catalog.get(ref.strip())
-    finally:
-        catalog.close()
-    return parse_params(entry.label)
-
-
-def write_file_atomically(path: Path, data: bytes) -> None:
-    """Write a file through a temporary file renamed at the end (also used by ``zoo export``).
-
-    A failure half-way leaves any existing file at ``path`` as it was.
-    """
-    from zoo.release import write_bytes_atomically
-
-    write_bytes_atomically(path, data)
-
-
 # --- ring ------------------------------------------------------------------------------
 
 
@@ -142,12 +91,14 @@ def ring(
             "isomorphic to the cycloid's reachability graph (small rings only).",
         ),
     ] = False,
-    fmt: Annotated[
-        RingFormat, typer.Option("--format", "-f", help="table: readable; json: one object.")
-    ] = RingFormat.table,
-    db: DbOption = None,
+    state_limit: StateLimitOption = RING_STATE_LIMIT,
+    fmt: TableOrJsonOption = TableOrJson.table,
+    db: ReadOnlyCatalogOption = None,
 ) -> None:
     """The cycloid of a circular queue of C items and G free slots.
+
+    --simulate explores the ring's states and the cycloid's reachability graph, each up to
+    --state-limit states.
 
     Example: zoo ring --items 2 --slots 3 --individual-items
     """
@@ -155,20 +106,18 @@ def ring(
 
     try:
         design = RingDesign(items, slots, individual_items, individual_slots)
-        report: dict[str, Any] = describe_ring(design, _class_id(design.params, db))
+        report: dict[str, Any] = describe_ring(design, class_id_of(design.params, db))
         if simulate:
-            report["simulation"] = simulation_report(design)
+            report["simulation"] = simulation_report(design, state_limit)
     except ZooError as exc:
-        raise fail(str(exc)) from None
-    if fmt is RingFormat.json:
-        _print_json(report)
+        raise fail(exc) from None
+    if fmt is TableOrJson.json:
+        print_json(report)
         return
     _print_ring_table(report)
 
 
 def _print_ring_table(report: dict[str, Any]) -> None:
-    from rich.console import Console
-    from rich.table import Table
 
     inv = report["invariants"]
     fwd, bwd = inv["forward_cycles"], inv["backward_cycles"]
@@ -178,8 +127,8 @@ def _print_ring_table(report: dict[str, Any]) -> None:
         ("cycloid", report["params"]),
         ("catalog id", report["class_id"] or "—"),
         ("area", f"{report['area']:,} (shortest return to the start, in moves)"),
-        ("reachable states", _short_number(report["states"])),
-        ("reachability arcs", _short_number(inv["state_arcs"])),
+        ("reachable states", number_text(report["states"])),
+        ("reachability arcs", number_text(inv["state_arcs"])),
         ("loop (shortest cycle)", str(inv["loop"])),
         ("forward cycles", f"{fwd['count']} × {fwd['length']} ({_count(fwd['tokens'], 'item')} "
          "each)"),
@@ -196,39 +145,19 @@ def _print_ring_table(report: dict[str, Any]) -> None:
             ("simulation", f"{sim['states']:,} states, {sim['moves']:,} moves: {verdict} "
              "to the cycloid's reachability graph")
         )
-    table = Table(title=f"ring design → {report['params']}", title_justify="left")
-    table.add_column("property", no_wrap=True)
-    table.add_column("value", overflow="fold")
-    for row in rows:
-        table.add_row(*row)
-    Console(soft_wrap=False).print(table)
+    print_property_table(f"ring design → {report['params']}", ("property", "value"), rows)
 
 
 def _count(n: int, noun: str) -> str:
     return f"{n} {noun}{'' if n == 1 else 's'}"
 
 
-def _short_number(value: int) -> str:
-    sys.set_int_max_str_digits(0)
-    digits = str(value)
-    if len(digits) <= 40:
-        return f"{value:,}"
-    return f"{digits[0]}.{digits[1:9]}e{len(digits) - 1} (exact in --format json)"
-
-
 # --- draw ------------------------------------------------------------------------------
 
 
-@app.command("draw", context_settings=_LOOSE)
+@app.command("draw", context_settings=LOOSE_ARGUMENTS)
 def draw(
-    ref: Annotated[
-        list[str],
-        typer.Argument(
-            metavar="PARAMS|ID",
-            help="A parameter set (4,2,2,3) or a catalog identifier such as CY16-3.",
-            show_default=False,
-        ),
-    ],
+    ref: ReferenceArgument,
     fmt: Annotated[
         PictureFormat | None,
         typer.Option(
@@ -250,7 +179,7 @@ def draw(
         typer.Option("--output", "-o", help="File to write; svg and dot go to standard "
                      "output when omitted.", dir_okay=False),
     ] = None,
-    db: DbOption = None,
+    db: ReadOnlyCatalogOption = None,
 ) -> None:
     """Draw a cycloid: its fundamental parallelogram, net, processes or reachability graph.
 
@@ -258,9 +187,10 @@ def draw(
     """
     from zoo.draw import draw as draw_picture
 
+    refuse_unknown_options("draw", ref)
     try:
         chosen = _picture_format(fmt, output)
-        p = _resolve_params(" ".join(ref), db)
+        p = resolve_params(" ".join(ref), db)
         data = draw_picture(p, view.value, chosen.value)
         if output is None:
             if chosen is PictureFormat.png:
@@ -272,7 +202,7 @@ def draw(
             return
         write_file_atomically(output, data)
     except ZooError as exc:
-        raise fail(str(exc)) from None
+        raise fail(exc) from None
     typer.echo(f"Wrote {output} ({view.value} view of {p}, {chosen.value}, {len(data):,} bytes)",
                err=True)
 
@@ -306,7 +236,7 @@ def cite(
         CiteFormat,
         typer.Option("--format", "-f", help="both (default), bibtex, text, or json."),
     ] = CiteFormat.both,
-    db: DbOption = None,
+    db: ReadOnlyCatalogOption = None,
 ) -> None:
     """Print a BibTeX entry and a plain-text citation of a catalog entry.
 
@@ -319,9 +249,9 @@ def cite(
         with Catalog.open(db) as catalog:
             citation = make_citation(catalog, ref)
     except ZooError as exc:
-        raise fail(str(exc)) from None
+        raise fail(exc) from None
     if fmt is CiteFormat.json:
-        _print_json(citation.as_dict())
+        print_json(citation.as_dict())
     elif fmt is CiteFormat.bibtex:
         typer.echo(citation.bibtex(), nl=False)
     elif fmt is CiteFormat.text:
@@ -347,7 +277,7 @@ def dump(
                      help="File to write (replaced only when the dump is complete); "
                      "standard output when omitted."),
     ] = None,
-    db: DbOption = None,
+    db: ReadOnlyCatalogOption = None,
 ) -> None:
     """Write every class of the catalog with invariants, readings and members (CSV, JSON Lines).
 
@@ -366,7 +296,7 @@ def dump(
             summary = write_dump(iter_catalog_entries(catalog), chosen.value, output)
             complete = catalog.complete_to()
     except ZooError as exc:
-        raise fail(str(exc)) from None
+        raise fail(exc) from None
     typer.echo(
         f"Wrote {summary.path}: {summary.classes:,} classes, {summary.bytes:,} bytes, "
         f"catalog complete to area {complete}; SHA-256 {summary.sha256}",
@@ -398,7 +328,7 @@ def release(
         typer.Option("--verify", file_okay=False,
                      help="Check an existing release folder against its manifest instead."),
     ] = None,
-    db: DbOption = None,
+    db: ReadOnlyCatalogOption = None,
 ) -> None:
     """Write a catalog release (CSV and JSON Lines dumps, manifest, SHA256SUMS), or verify one.
 
@@ -430,7 +360,7 @@ def release(
         assert output is not None
         summary = _write_release(output, db)
     except ZooError as exc:
-        raise fail(str(exc)) from None
+        raise fail(exc) from None
     for item in summary.files:
         typer.echo(f"{item.sha256}  {item.path.name}  ({item.bytes:,} bytes)")
     typer.echo(

@@ -9,41 +9,24 @@ catalog service and writes files.
 from __future__ import annotations
 
 import json
-import os
 import sys
-import tempfile
 from enum import StrEnum
 from pathlib import Path
-from typing import Annotated, NoReturn
+from typing import Annotated
 
 import typer
 
-from zoo.cli.app import app
-from zoo.errors import FormatError, ParameterError, ZooError
-from zoo.params import ParameterSet, parse_params
-
-DbOption = Annotated[
-    str | None,
-    typer.Option(
-        "--db",
-        help="Catalog file or database URL (default: $ZOO_CATALOG, else the user data "
-        "directory). Read only: never built or changed.",
-    ),
-]
-
-# Parameter sets such as -1,2,2,3 must reach our parser (which explains what is wrong) instead
-# of being taken for unknown options.
-_LOOSE = {"ignore_unknown_options": True}
-
-
-def _exit_with_error(message: str) -> NoReturn:
-    """Print ``Error: message`` and exit with status 1.
-
-    SystemExit, not typer.Exit: the console entry point runs the app with
-    standalone_mode=False, where typer.Exit turns into a return value and the status would be 0.
-    """
-    typer.echo(f"Error: {message}", err=True)
-    raise SystemExit(1)
+from zoo.cli.app import USER_ERROR, app, fail, print_error
+from zoo.cli.common import (
+    LOOSE_ARGUMENTS,
+    ReadOnlyCatalogOption,
+    ReferenceArgument,
+    refuse_unknown_options,
+    resolve_params,
+    write_file_atomically,
+)
+from zoo.errors import FormatError, ZooError
+from zoo.params import ParameterSet
 
 
 class ExportFormat(StrEnum):
@@ -75,28 +58,6 @@ class AnswerFormat(StrEnum):
     json = "json"
 
 
-def resolve_reference(ref: str, db: str | None) -> ParameterSet:
-    """A parameter set typed directly (or a label), or the label of a catalog class identifier."""
-    from zoo.identifiers import read_identifier
-
-    identifier = read_identifier(ref)
-    if identifier is None:
-        return parse_params(ref)
-    if identifier.kind == "frame":
-        raise ParameterError(
-            f"{identifier} is a frame (an unmarked net); export a class such as "
-            f"CY{identifier.area}-1 or a parameter set"
-        )
-    from zoo.catalog import Catalog
-
-    catalog = Catalog.open(db)
-    try:
-        entry = catalog.get(ref.strip())
-    finally:
-        catalog.close()
-    return parse_params(entry.label)
-
-
 def export_document(p: ParameterSet, fmt: ExportFormat) -> str:
     """The net of C(p) as text in the chosen format."""
     if fmt is ExportFormat.svg:
@@ -125,24 +86,6 @@ def export_document(p: ParameterSet, fmt: ExportFormat) -> str:
     return net_text(net)
 
 
-def write_atomically(path: Path, data: bytes) -> None:
-    """Write through a temporary file in the same folder, then rename over ``path``.
-
-    A failure half-way leaves any existing file at ``path`` as it was.
-    """
-    folder = path.parent if str(path.parent) else Path(".")
-    if not folder.is_dir():
-        raise FormatError(f"folder {str(folder)!r} for the output file does not exist; create it")
-    handle, temporary = tempfile.mkstemp(prefix=f".{path.name}.", dir=folder)
-    try:
-        with os.fdopen(handle, "wb") as out:
-            out.write(data)
-        os.replace(temporary, path)
-    except BaseException:
-        Path(temporary).unlink(missing_ok=True)
-        raise
-
-
 def _export_format(fmt: ExportFormat | None, output: Path | None) -> ExportFormat:
     if fmt is not None:
         return fmt
@@ -157,17 +100,9 @@ def _export_format(fmt: ExportFormat | None, output: Path | None) -> ExportForma
     return ExportFormat.pnml
 
 
-@app.command("export", context_settings=_LOOSE)
+@app.command("export", context_settings=LOOSE_ARGUMENTS)
 def export(
-    ref: Annotated[
-        list[str],
-        typer.Argument(
-            metavar="PARAMS|ID",
-            help="A parameter set (4,2,2,3 or C(4,2,2,3)) or a class identifier such as CY16-3 "
-            "(exports the net of the class's label).",
-            show_default=False,
-        ),
-    ],
+    ref: ReferenceArgument,
     fmt: Annotated[
         ExportFormat | None,
         typer.Option(
@@ -181,22 +116,25 @@ def export(
         typer.Option("--output", "-o", help="File to write (default: standard output).",
                      dir_okay=False),
     ] = None,
-    db: DbOption = None,
+    db: ReadOnlyCatalogOption = None,
 ) -> None:
     """Write the net of a cycloid system, laid out on its fundamental parallelogram.
 
+    A class identifier such as CY16-3 exports the net of the class's label.
+
     Example: zoo export 4,2,2,3 --output c4223.pnml
     """
+    refuse_unknown_options("export", ref)
     try:
         chosen = _export_format(fmt, output)
-        p = resolve_reference(" ".join(ref), db)
+        p = resolve_params(" ".join(ref), db)
         document = export_document(p, chosen)
         if output is None:
             sys.stdout.write(document)
             return
-        write_atomically(output, document.encode("utf-8"))
+        write_file_atomically(output, document.encode("utf-8"))
     except ZooError as exc:
-        _exit_with_error(str(exc))
+        raise fail(exc) from None
     typer.echo(f"Wrote {output} (net of {p}, {chosen.value}, {len(document):,} characters)",
                err=True)
 
@@ -221,7 +159,7 @@ def identify(
         typer.Option("--mapping", "-m",
                      help="Text format: also list which element is which coordinate."),
     ] = False,
-    db: DbOption = None,
+    db: ReadOnlyCatalogOption = None,
     no_catalog: Annotated[
         bool, typer.Option("--no-catalog", help="Do not look up class identifiers.")
     ] = False,
@@ -243,12 +181,12 @@ def identify(
         try:
             answer = identify_file(path, db, use_catalog=not no_catalog)
         except ZooError as exc:
+            # One unreadable file must not stop the others: report it now, fail at the end.
             unreadable += 1
-            message = str(exc)
             if fmt is AnswerFormat.json:
-                typer.echo(json.dumps({"file": str(path), "cycloid": None, "error": message},
+                typer.echo(json.dumps({"file": str(path), "cycloid": None, "error": str(exc)},
                                       ensure_ascii=False))
-            typer.echo(f"Error: {message}", err=True)
+            print_error(exc)
             continue
         if fmt is AnswerFormat.json:
             typer.echo(json.dumps(answer.as_dict(), ensure_ascii=False))
@@ -260,7 +198,7 @@ def identify(
             for foreign, ours in answer.place_map:
                 typer.echo(f"  place {foreign} = {ours}")
     if unreadable:
-        raise SystemExit(1)
+        raise typer.Exit(USER_ERROR)
 
 
-__all__ = ["ExportFormat", "export_document", "resolve_reference"]
+__all__ = ["ExportFormat", "export_document"]

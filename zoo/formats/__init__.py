@@ -21,10 +21,11 @@ from zoo.errors import FormatError
 if TYPE_CHECKING:
     from zoo.net import CycloidNet
 
-#: Largest input file accepted by any reader: 10 MiB. zoo's own PNML export takes about 840
-#: bytes per transition, so every exported net up to area ~12,000 reads back; that is also the
-#: largest net the canonical form accepts (zoo.canonical.CANONICAL_LIMIT, 5 vertices per
-#: transition), so nothing identifiable is refused for its size.
+#: Largest input file accepted by any reader: 10 MiB. zoo's own PNML export takes about 850
+#: bytes per transition, so every exported net up to area ~12,000 reads back. That is ten times
+#: the largest net the canonical form accepts (zoo.canonical.CANONICAL_LIMIT vertices at 5 per
+#: transition: area CANONICAL_LIMIT // 5), so nothing identifiable is refused for its size;
+#: tests/test_identify.py checks this against the constant.
 MAX_INPUT_BYTES = 10 * 1024 * 1024
 
 PLACE = "place"

@@ -126,6 +126,11 @@ def _sqlite_file(url: URL) -> Path | None:
     return Path(database).expanduser()
 
 
+def sqlite_file(url: str | URL) -> Path | None:
+    """The file of a SQLite catalog URL, None for memory databases and other backends."""
+    return _sqlite_file(make_url(url) if isinstance(url, str) else url)
+
+
 def _create_parent(path: Path, shown: str) -> None:
     try:
         path.parent.mkdir(parents=True, exist_ok=True)
@@ -147,6 +152,30 @@ def display_location(url: str | URL) -> str:
     if file is not None and not (parsed.database or "").startswith("file:"):
         return str(file)
     return _display_url(parsed)
+
+
+def is_default_location(url: str | URL) -> bool:
+    """Whether ``url`` is the catalog zoo opens when no ``--db`` is given ($ZOO_CATALOG, else
+    the default file), so that a suggested command needs no ``--db``. Creates nothing."""
+    value = os.environ.get(CATALOG_ENV_VAR, "").strip()
+    try:
+        if "://" in value:
+            default = _normalised_url(value)
+        else:
+            path = Path(value).expanduser() if value else default_catalog_path()
+            default = URL.create("sqlite", database=str(path.absolute()))
+    except CatalogError:
+        return False
+    parsed = make_url(url) if isinstance(url, str) else url
+    return display_location(parsed) == display_location(default)
+
+
+def db_option(url: str | URL) -> str:
+    """`` --db LOCATION`` (shell-quoted) for a command about the catalog at ``url``; empty
+    when ``url`` is the catalog zoo opens anyway."""
+    if is_default_location(url):
+        return ""
+    return f" --db {shlex.quote(display_location(url))}"
 
 
 def migrate_command(url: str | URL) -> str:
@@ -417,10 +446,12 @@ __all__ = [
     "alembic_config",
     "catalog_exists",
     "current_revision",
+    "db_option",
     "default_catalog_path",
     "display_location",
     "downgrade",
     "head_revision",
+    "is_default_location",
     "known_revisions",
     "migrate_command",
     "migrations_directory",
@@ -428,5 +459,6 @@ __all__ = [
     "require_current",
     "resolve_location",
     "sortable_key",
+    "sqlite_file",
     "upgrade",
 ]
