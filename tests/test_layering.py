@@ -21,14 +21,20 @@ CORE_MODULES = [
     "zoo.behaviour",
     "zoo.report",
     "zoo.synthesis",
+    "zoo.ring",
+    "zoo.identify",
+    "zoo.formats.pnml",
+    "zoo.formats.nettext",
 ]
-FORBIDDEN = ["sqlalchemy", "alembic", "typer", "zoo.storage", "zoo.cli", "zoo.catalog"]
+FORBIDDEN = [
+    "sqlalchemy", "alembic", "typer", "zoo.storage", "zoo.cli", "zoo.catalog", "zoo.build",
+]
 
 PROBE = """
 import importlib, json, sys
 importlib.import_module(sys.argv[1])
 print(json.dumps(sorted(m for m in sys.modules if m.split(".")[0] in {"sqlalchemy", "alembic",
-      "typer"} or m.startswith(("zoo.storage", "zoo.cli", "zoo.catalog")))))
+      "typer"} or m.startswith(("zoo.storage", "zoo.cli", "zoo.catalog", "zoo.build")))))
 """
 
 
