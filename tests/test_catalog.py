@@ -386,3 +386,138 @@ def test_missing_area_message_quotes_an_odd_location(tmp_path: Path) -> None:
         with pytest.raises(NotInCatalog) as info:
             catalog.get("CY9-1")
     assert str(info.value).endswith(f"extend it with: zoo build --max-area 9 --db '{location}'")
+
+
+def test_two_builds_of_one_new_catalog_at_once(
+    tmp_path: Path, fresh30_rows: dict[str, list[tuple[Any, ...]]]
+) -> None:
+    """Two real processes build one fresh SQLite file: both finish, the catalog is whole."""
+    location = str(tmp_path / "twice.sqlite3")
+    zoo = Path(sys.executable).with_name("zoo")
+    command = [str(zoo), "build", "--max-area", "30", "--db", location, "--jobs", "1"]
+    processes = [
+        subprocess.Popen(command, stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True)
+        for _ in range(2)
+    ]
+    outputs = [process.communicate(timeout=180) for process in processes]
+    for process, (stdout, stderr) in zip(processes, outputs, strict=True):
+        assert process.returncode == 0, stderr
+        assert "Traceback" not in stderr
+        assert stdout.rstrip().endswith("The catalog is complete up to area 30.")
+    assert dump(location) == fresh30_rows
+
+
+def test_a_writer_locked_out_too_long_gets_one_line(
+    tmp_path: Path, monkeypatch: pytest.MonkeyPatch
+) -> None:
+    import sqlite3
+
+    from zoo.storage import database
+
+    location = tmp_path / "held.sqlite3"
+    _build(location, 3)
+    monkeypatch.setattr(database, "SQLITE_BUSY_TIMEOUT_MS", 200)
+    holder = sqlite3.connect(location, isolation_level=None)
+    holder.execute("BEGIN IMMEDIATE")  # another zoo in the middle of writing an area
+    try:
+        with Catalog.open(str(location)) as catalog:
+            with pytest.raises(database.CatalogBusy) as info:
+                catalog.build(5)
+    finally:
+        holder.execute("ROLLBACK")
+        holder.close()
+    assert str(info.value) == (
+        f"catalog {location} is busy: another zoo is writing it (waited 0.2 s for its lock); "
+        "try again when it finishes"
+    )
+    assert isinstance(info.value, CatalogError)
+    with Catalog.open(str(location)) as catalog:
+        assert catalog.complete_to() == 3  # nothing half-written
+
+
+class _StopAfter:
+    """A build progress that presses Ctrl-C once a given area is stored."""
+
+    def __init__(self, area: int) -> None:
+        self.area = area
+
+    def started(self, areas: Any, parameter_sets: int) -> None:
+        pass
+
+    def area_done(self, stats: Any) -> None:
+        if stats.area >= self.area:
+            raise KeyboardInterrupt
+
+    def finished(self, report: Any) -> None:
+        pass
+
+
+def test_ensure_catalog_resumes_only_its_own_interrupted_build(
+    tmp_path: Path, monkeypatch: pytest.MonkeyPatch
+) -> None:
+    import zoo.catalog
+    from zoo.build import ensure_catalog
+
+    monkeypatch.setattr(zoo.catalog, "DEFAULT_MAX_AREA", 14)
+    location = str(tmp_path / "default.sqlite3")
+    with pytest.raises(KeyboardInterrupt):
+        ensure_catalog(location, jobs=1, progress=_StopAfter(8))
+    with Catalog.open(location) as catalog:
+        assert catalog.complete_to() == 8
+        assert catalog.info()["build_target"] == "14"
+    catalog, report = ensure_catalog(location, jobs=1)
+    with catalog:
+        assert report is not None and report.added == tuple(range(9, 15))
+        assert catalog.complete_to() == 14
+    catalog, report = ensure_catalog(location, jobs=1)
+    catalog.close()
+    assert report is None  # complete: nothing more to do
+
+    # A catalog built to 10 on purpose is the user's choice: never extended behind their back.
+    chosen = str(tmp_path / "chosen.sqlite3")
+    _build(Path(chosen), 10)
+    catalog, report = ensure_catalog(chosen, jobs=1)
+    with catalog:
+        assert report is None and catalog.complete_to() == 10
+    # Nor is one whose latest build, to another bound, was interrupted.
+    with Catalog.open(chosen) as catalog:
+        with pytest.raises(KeyboardInterrupt):
+            catalog.build(13, progress=_StopAfter(11))
+    catalog, report = ensure_catalog(chosen, jobs=1)
+    with catalog:
+        assert report is None and catalog.complete_to() == 11
+
+
+def test_find_columns_come_back_typed_for_machine_formats(fresh30: str) -> None:
+    """FindResult.values: class fields as JSON values, member fields as sorted value lists."""
+    import math
+    from fractions import Fraction
+
+    from zoo.catalog import column_cell
+
+    asked = ["regular,processes,slowness", "gamma,states,cycle_time,cyclic,loop"]
+    with Catalog.open(fresh30) as catalog:
+        result = catalog.find("area in 8..12", columns=asked)
+    assert len(result.values) == len(result.entries) > 0
+    mixed = 0
+    for entry, values in zip(result.entries, result.values, strict=True):
+        members = [parse_params(m) for m in entry.as_dict()["members"]]  # type: ignore[union-attr]
+        # processes = gcd(beta, delta) and regular = (beta | delta), theory.md §7
+        assert values["processes"] == sorted({math.gcd(p.beta, p.delta) for p in members})
+        assert values["regular"] == sorted({p.delta % p.beta == 0 for p in members})
+        # slowness (alpha - beta) / (alpha + beta), theory.md §10, written num/den
+        slowness = sorted({Fraction(p.alpha - p.beta, p.alpha + p.beta) for p in members})
+        assert values["slowness"] == [f"{s.numerator}/{s.denominator}" for s in slowness]
+        assert values["gamma"] == sorted({p.gamma for p in members})
+        assert values["states"] == entry.invariants["states"]
+        assert isinstance(values["states"], int) and not isinstance(values["states"], bool)
+        assert values["cycle_time"] == entry.invariants["cycle_time"]
+        assert values["cyclic"] is entry.invariants["cyclic"]
+        assert values["loop"] == entry.invariants["loop"]
+        mixed += len(values["processes"]) > 1  # type: ignore[arg-type]
+    assert mixed > 0  # some class mixes 1 and 2 processes: the list really is a list
+    first = result.values[0]
+    assert column_cell(first["regular"]) in ("[true]", "[false]", "[false,true]")
+    assert column_cell(True) == "true" and column_cell(None) == ""
+    assert column_cell(["-1/3", "1/3"]) == '["-1/3","1/3"]'
+    assert result.cell(0, "loop") == str(first["loop"])

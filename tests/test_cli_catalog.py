@@ -285,8 +285,6 @@ def test_suggested_build_names_the_catalog_given_by_db(db: str) -> None:
     assert shown.stderr.rstrip().endswith(
         f"extend it with: zoo build --max-area 25 --db {quoted}"
     )
-    member = invoke("show", "C(1,1,1,24)", "--db", db)
-    assert member.stderr.rstrip().endswith(f"zoo build --max-area 25 --db {quoted}")
 
 
 def test_suggested_build_needs_no_db_for_the_catalog_zoo_opens_anyway(
@@ -305,3 +303,57 @@ def test_suggested_build_stays_within_the_build_limit(db: str) -> None:
     assert f"zoo build --max-area {MAX_BUILD_AREA} --db " in result.stderr
     assert f"areas above the build limit {MAX_BUILD_AREA:,} cannot be built" in result.stderr
     assert "--max-area 99999999999999999999999" not in result.stderr
+
+
+_FIND_WITH_SMALL_DEFAULT = (
+    "import sys\n"
+    "import zoo.catalog\n"
+    "zoo.catalog.DEFAULT_MAX_AREA = 40  # the real default is 100: keep the test short\n"
+    "from zoo.cli import main\n"
+    "sys.argv = ['zoo', 'find', 'processes = 3 and area < 100', '--count', '--jobs', '1']\n"
+    "main()\n"
+)
+
+
+def test_interrupted_default_build_resumes_on_the_next_find(tmp_path: Path) -> None:
+    """Ctrl-C (a real SIGINT) during the first `zoo find`, then `zoo find` again: it finishes
+    the default build before answering."""
+    import os
+    import signal
+    import subprocess
+    import sys
+    import time
+
+    from zoo.catalog import Catalog
+
+    location = tmp_path / "main-job.sqlite3"
+    env = {**os.environ, "ZOO_CATALOG": str(location)}
+    command = [sys.executable, "-c", _FIND_WITH_SMALL_DEFAULT]
+    first = subprocess.Popen(command, env=env, stdout=subprocess.PIPE, stderr=subprocess.PIPE,
+                             text=True)
+    deadline = time.monotonic() + 120
+    reached = 0
+    while time.monotonic() < deadline and first.poll() is None:
+        try:
+            with Catalog.open(str(location)) as catalog:
+                reached = catalog.complete_to()
+        except Exception:  # not created yet
+            reached = 0
+        if reached >= 12:
+            break
+        time.sleep(0.05)
+    first.send_signal(signal.SIGINT)
+    _out, err = first.communicate(timeout=60)
+    assert first.returncode == 130, err
+    with Catalog.open(str(location)) as catalog:
+        stopped = catalog.complete_to()
+    assert 12 <= stopped < 40
+    second = subprocess.run(command, env=env, capture_output=True, text=True, timeout=180)
+    assert second.returncode == 0, second.stderr
+    assert "The catalog is complete up to area 40." in second.stderr
+    with Catalog.open(str(location)) as catalog:
+        assert catalog.complete_to() == 40
+        # processes = gcd(beta, delta) (theory.md §7): count those classes of area < 41 directly
+        # from the stored classes, which an uninterrupted build would have given
+        expected = catalog.count("processes = 3 and area <= 40")
+    assert second.stdout == f"{expected}\n"

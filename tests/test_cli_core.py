@@ -501,3 +501,214 @@ def test_ring_simulation_takes_the_state_limit() -> None:
         "Error: the simulated ring of 2 items and 3 slots (anonymous) has more than 9 states; "
         "simulate a smaller ring or raise the state limit\n"
     )
+
+
+# --- references: identifiers everywhere, clear refusals (user audit) ------------------------------
+
+
+@pytest.fixture(scope="module")
+def area16_catalog(tmp_path_factory: pytest.TempPathFactory) -> str:
+    db = str(tmp_path_factory.mktemp("catalog16") / "catalog.sqlite3")
+    built = runner.invoke(app, ["build", "--max-area", "16", "--jobs", "1", "--db", db])
+    assert built.exit_code == 0, built.output
+    return db
+
+
+def test_compare_accepts_identifiers_like_show(area16_catalog: str) -> None:
+    first = entry_label("CY16-3", area16_catalog)
+    second = entry_label("CY16-4", area16_catalog)
+    result = runner.invoke(app, ["compare", "CY16-3", "CY16-4", "--db", area16_catalog,
+                                 "--format", "json"])
+    assert result.exit_code == 0, result.output
+    report = json.loads(result.stdout)
+    assert report["ids"] == ["CY16-3", "CY16-4"]
+    # two different catalog classes are never the same class (docs/architecture.md, identifiers)
+    assert report["same_class"] is False
+    assert report == compare_json(first, second) | {"ids": ["CY16-3", "CY16-4"]}
+
+
+@pytest.mark.parametrize("command", ["show", "compare", "draw", "export", "explore", "cite"])
+@pytest.mark.parametrize("text", ["XY16-3", "CY16--1"])
+def test_text_that_is_no_reference_says_so(command: str, text: str) -> None:
+    args = [command, text] + (["4,2,2,3"] if command == "compare" else [])
+    result = runner.invoke(app, args)
+    assert result.exit_code == 1
+    assert result.stderr == (
+        f"Error: '{text}' is neither a parameter set (4,2,2,3 or C(4,2,2,3)) nor a catalog "
+        "identifier (CY16-3, FR16-2)\n"
+    )
+
+
+def test_cite_takes_four_separate_values_like_show(area16_catalog: str) -> None:
+    joined = runner.invoke(app, ["cite", "4,2,2,3", "--db", area16_catalog, "--format", "json"])
+    assert joined.exit_code == 0, joined.output
+    apart = runner.invoke(app, ["cite", "4", "2", "2", "3", "--db", area16_catalog,
+                                "--format", "json"])
+    assert apart.exit_code == 0, apart.output
+    assert apart.stdout == joined.stdout
+    by_id = runner.invoke(app, ["cite", "CY16-3", "--db", area16_catalog, "--format", "text"])
+    assert by_id.exit_code == 0, by_id.output
+    assert "CY16-3" in by_id.stdout
+
+
+def test_draw_refuses_unknown_suffixes(tmp_path: Path) -> None:
+    target = tmp_path / "x.jpg"
+    result = runner.invoke(app, ["draw", "4,2,2,3", "-o", str(target)])
+    assert result.exit_code == 1
+    assert result.stderr == (
+        f"Error: cannot tell the picture format from the suffix '.jpg' of {target}; name the "
+        "file .svg, .png, .dot, .gv or give --format svg, png or dot\n"
+    )
+    assert not target.exists()
+    svg = tmp_path / "x.svg"
+    assert runner.invoke(app, ["draw", "4,2,2,3", "-o", str(svg)]).exit_code == 0
+    assert svg.read_text().lstrip().startswith("<")
+
+
+# --- the light catalog lookup of zoo show (user audit: start-up time) -----------------------------
+
+
+def test_quick_lookup_agrees_with_the_catalog_service(area16_catalog: str) -> None:
+    from zoo.catalog import Catalog, lookup_class_id
+    from zoo.cli.quicklookup import head_revision_of_migrations, quick_class_id
+    from zoo.enumeration import iter_parameter_sets
+    from zoo.params import ParameterSet
+    from zoo.storage.database import head_revision
+
+    assert head_revision_of_migrations() == head_revision()  # Alembic's own answer
+    catalog_file = Path(area16_catalog)
+    with Catalog.open(area16_catalog) as catalog:
+        for area in range(1, 18):  # area 17 is not stored: both say None
+            for p in iter_parameter_sets(area):
+                entry = catalog.class_for_params(p)
+                expected = None if entry is None else entry.id
+                assert quick_class_id(p, catalog_file) == expected, p
+    p = ParameterSet(4, 2, 2, 3)
+    assert quick_class_id(p, catalog_file) == lookup_class_id(p, area16_catalog) is not None
+
+
+def test_quick_lookup_leaves_an_outdated_catalog_to_the_service(tmp_path: Path) -> None:
+    import shutil
+    import sqlite3
+
+    from zoo.cli.quicklookup import UNANSWERED, quick_class_id
+    from zoo.params import ParameterSet
+
+    db = tmp_path / "old.sqlite3"
+    built = runner.invoke(app, ["build", "--max-area", "4", "--jobs", "1", "--db", str(db)])
+    assert built.exit_code == 0, built.output
+    with sqlite3.connect(db) as connection:
+        connection.execute("UPDATE alembic_version SET version_num = '0001'")
+    assert quick_class_id(ParameterSet(1, 1, 1, 1), db) is UNANSWERED
+    result = runner.invoke(app, ["show", "1,1,1,1", "--db", str(db), "--format", "json"])
+    assert result.exit_code == 0
+    assert json.loads(result.stdout)["id"] is None
+    assert result.stderr.startswith("Note: no catalog identifier: catalog ")
+    assert "zoo migrate" in result.stderr
+    garbage = tmp_path / "garbage.sqlite3"
+    shutil.copyfile(Path(__file__), garbage)
+    assert quick_class_id(ParameterSet(1, 1, 1, 1), garbage) is UNANSWERED
+
+
+@pytest.mark.parametrize("with_catalog", [False, True])
+def test_show_json_imports_no_database_or_table_library(
+    with_catalog: bool, area16_catalog: str, tmp_path: Path
+) -> None:
+    db = area16_catalog if with_catalog else str(tmp_path / "none.sqlite3")
+    code = (
+        "import sys; sys.argv = ['zoo', 'show', '4,2,2,3', '--format', 'json', '--db', "
+        f"{db!r}]; from zoo.cli import main; main()"
+    )
+    result = subprocess.run([sys.executable, "-X", "importtime", "-c", code],
+                            capture_output=True, text=True, check=False)
+    assert result.returncode == 0, result.stderr[-2000:]
+    from zoo.catalog import lookup_class_id
+    from zoo.params import ParameterSet
+
+    expected = lookup_class_id(ParameterSet(4, 2, 2, 3), db) if with_catalog else None
+    assert json.loads(result.stdout)["id"] == expected
+    imported = {line.rsplit("|", 1)[-1].strip() for line in result.stderr.splitlines()
+                if line.startswith("import time:")}
+    assert not {"sqlalchemy", "alembic", "rich", "networkx"} & imported
+
+
+# --- wording of usage errors and tables (user audit) ----------------------------------------------
+
+
+@pytest.mark.parametrize(
+    ("args", "message"),
+    [
+        (["show", "4,2,2,3", "--format", "xml"], "--format must be one of table, json; got 'xml'"),
+        (["draw", "4,2,2,3", "--view", "side"],
+         "--view must be one of parallelogram, net, processes, states; got 'side'"),
+        (["explore", "4,2,2,3", "--state-limit", "0"], "--state-limit must be at least 1; got '0'"),
+        (["explore", "4,2,2,3", "--state-limit", "many"],
+         "--state-limit must be a whole number; got 'many'"),
+    ],
+)
+def test_bad_option_values_are_said_plainly(args: list[str], message: str) -> None:
+    result = runner.invoke(app, args, env={"COLUMNS": "120"})
+    assert result.exit_code == 2
+    # typer's runner frames the message in a box; the words are the same
+    assert message in [line.strip("│ ") for line in result.stderr.splitlines()]
+    assert "Value error" not in result.stderr and "Input should" not in result.stderr
+    # the installed command prints it as one line (the non-standalone path of zoo.cli.app.main)
+    installed = subprocess.run([str(ZOO), *args], capture_output=True, text=True, check=False)
+    assert installed.returncode == 2
+    assert installed.stderr.splitlines()[-1] == f"Error: {message}"
+
+
+def test_help_shows_no_bool_type_and_no_docstring_line_breaks() -> None:
+    group = typer.main.get_group(app)
+    for name in [*group.commands, None]:
+        args = [name, "--help"] if name else ["--help"]
+        result = runner.invoke(app, args, env={"COLUMNS": "200"})
+        assert result.exit_code == 0, name
+        assert "<bool>" not in result.stdout, name
+    build = runner.invoke(app, ["build", "--help"], env={"COLUMNS": "200"}).stdout
+    assert "so an interrupted build keeps every area it finished." in build
+    assert "Example: zoo build --max-area 60 --jobs 2" in build
+
+
+def test_show_table_keeps_fingerprints_whole_and_whole_fractions_plain() -> None:
+    report = show_json("4,2,2,3")
+    result = runner.invoke(app, ["show", "4,2,2,3"], env={"COLUMNS": "60"})
+    assert result.exit_code == 0
+    lines = result.stdout.splitlines()
+    assert f"fingerprint (system): {report['fingerprint']}" in lines
+    assert f"fingerprint (net): {report['net_fingerprint']}" in lines
+    # cycle time A/min(alpha, beta) = 16/2 = 8 (theory.md §10); JSON keeps num/den
+    assert report["cycle_time"] == "8/1"
+    cycle = next(line for line in lines if line.startswith("│ cycle time"))
+    assert cycle.split("│")[2].strip() == "8"
+
+
+def test_catalog_entry_table_prints_whole_fractions_and_whole_fingerprints(
+    area16_catalog: str,
+) -> None:
+    entry = runner.invoke(app, ["show", "C(1,1,1,15)", "--db", area16_catalog, "--format", "json"])
+    assert entry.exit_code == 0, entry.output
+    report = json.loads(entry.stdout)
+    class_id = report["id"]
+    table = runner.invoke(app, ["show", class_id, "--db", area16_catalog], env={"COLUMNS": "60"})
+    assert table.exit_code == 0, table.output
+    lines = table.stdout.splitlines()
+    # C(1,1,1,15): cycle time A/min(alpha, beta) = 16/1 (theory.md §10), slowness 0/2 = 0
+    cycle = next(line for line in lines if line.startswith("cycle time"))
+    assert cycle.split()[-1] == "16"
+    assert "16/1" not in table.stdout
+    assert f"fingerprint: {report['fingerprint']}" in lines
+
+
+def test_exploration_report_lives_in_the_core() -> None:
+    import zoo.cli.core
+    from zoo.params import ParameterSet
+    from zoo.report import exploration_report
+
+    assert not hasattr(zoo.cli.core, "exploration_report")  # the CLI only prints it
+    report = exploration_report(ParameterSet(4, 2, 2, 3), 1000)
+    # theory.md §11: C(4,2,2,3) has 40 reachable states and 64 arcs
+    assert (report["states"], report["arcs"]) == (40, 64)
+    printed = explore_json("4,2,2,3", "--state-limit", "1000")
+    assert {k: v for k, v in printed.items() if k != "seconds"} == {
+        k: v for k, v in report.items() if k != "seconds"}

@@ -8,6 +8,8 @@ theory.md §11 [VERIFIED] and the drawing convention of theory.md §1 "Drawing".
 
 from __future__ import annotations
 
+import math
+import re
 from collections import Counter
 from pathlib import Path
 
@@ -219,3 +221,56 @@ def test_cli_draw_catalog_identifier(tmp_path: Path) -> None:
     result = CliRunner().invoke(app, ["draw", entry.id, "--db", str(db), "-o", str(out)])
     assert result.exit_code == 0, result.output
     assert _svg_ids(out.read_bytes())["transition"] == 8
+
+
+def test_large_net_png_stays_near_2000_pixels_with_a_readable_title() -> None:
+    """C(7,5,6,8), A = 7*8 + 5*6 = 86 (theory.md §2): the PNG is capped, not 4000 px wide."""
+    import io
+
+    from PIL import Image
+
+    from zoo.draw import LARGEST_INCHES, PNG_DPI
+
+    image = Image.open(io.BytesIO(draw(ParameterSet(7, 5, 6, 8), "net", "png")))
+    assert max(image.size) <= 2000  # LARGEST_INCHES * PNG_DPI, plus the title and the pad
+    assert LARGEST_INCHES * PNG_DPI < 2000
+    assert max(image.size) >= 1500  # still large enough to show 172 places
+    svg = draw(ParameterSet(7, 5, 6, 8), "net", "svg").decode()
+    title = re.search(r'font-size: ([\d.]+)px[^>]*>C\(7,5,6,8\): the net', svg)
+    assert title is not None and float(title.group(1)) >= 14
+
+
+def test_backward_places_stay_clear_of_the_chord_envelope() -> None:
+    """One ring (gcd(5, 8) = 1 process, theory.md §7): every backward chord skips the same
+    number of transitions, so all chords touch one inner circle at their midpoints; no
+    backward place may sit on that circle, where the chords pile up."""
+    from zoo.draw import net_picture, ring_place_points, ring_positions
+
+    net = net_picture(ParameterSet(7, 5, 6, 8))
+    positions, _rings = ring_positions(net)
+    outer = math.hypot(*positions[0])
+    chords = [(positions[net.pre[i]], positions[net.post[i]])
+              for i, kind in enumerate(net.kinds) if kind == "backward"]
+    envelope = min(math.hypot((a[0] + b[0]) / 2, (a[1] + b[1]) / 2) for a, b in chords)
+    places = ring_place_points(net)
+    backward = [places[i] for i, kind in enumerate(net.kinds) if kind == "backward"]
+    assert len(backward) == net.params.area  # one backward place per transition
+    for point in backward:
+        assert math.hypot(*point) > envelope + 0.1 * (outer - envelope)
+    svg = draw(ParameterSet(7, 5, 6, 8), "net", "svg").decode()
+    assert svg.count('id="place-') == len(net.places)
+    assert svg.count('id="token-') == sum(1 for k in net.tokens if k)
+
+
+def test_state_arc_labels_of_crossing_arcs_do_not_coincide() -> None:
+    """C(3,2,2,2): 20 states, 30 arcs (theory.md §10 formula); some arcs cross between two
+    layers, and their labels must not land on the same spot."""
+    svg = draw(ParameterSet(3, 2, 2, 2), "states", "svg").decode()
+    spots = [
+        (float(x), float(y))
+        for x, y in re.findall(r'x="([\d.]+)" y="([\d.]+)"[^>]*>t_[^<]*</text>', svg)
+    ]
+    assert len(spots) >= 20
+    for i, (x1, y1) in enumerate(spots):
+        for x2, y2 in spots[i + 1:]:
+            assert math.hypot(x1 - x2, y1 - y2) > 10, (x1, y1)

@@ -569,3 +569,57 @@ def test_stated_size_limits_match_the_constants() -> None:
     p = ParameterSet(1, 1, 1, largest_area - 1)
     assert p.area == largest_area
     assert 10 * len(pnml_document(build_net(p)).encode()) <= MAX_INPUT_BYTES
+
+
+def test_json_of_a_fired_cycloid_carries_the_observables_its_reason_quotes(
+    tmp_path: Path,
+) -> None:
+    # Firing t_1_0 of C(4,2,2,3) moves its tokens but keeps 16 transitions, 6 tokens; the reason
+    # quotes those numbers, so the JSON answer must hold them too (docs/identify.md, keys).
+    exported = tmp_path / "a.mgraph"
+    assert runner.invoke(app, ["export", "4,2,2,3", "--format", "text", "-o",
+                               str(exported)]).exit_code == 0
+    net = parse_net_text(exported.read_text(), str(exported))
+    inputs = {a.source for a in net.arcs if a.target == "t_1_0"}
+    outputs = {a.target for a in net.arcs if a.source == "t_1_0"}
+    marking = dict(zip(net.places, net.tokens, strict=True))
+    assert all(marking[place] == 1 for place in inputs)  # t_1_0 is enabled at M0
+    lines = [f"net {net.name} after t_1_0"]
+    for place, count in marking.items():
+        source = next(a.source for a in net.arcs if a.target == place)
+        target = next(a.target for a in net.arcs if a.source == place)
+        tokens = count - (place in inputs) + (place in outputs)
+        lines.append(f"place {place}: {source} -> {target} tokens {tokens}")
+    fired = tmp_path / "fired.mgraph"
+    fired.write_text("\n".join(lines) + "\n")
+    result = runner.invoke(app, ["identify", str(fired), "--format", "json", "--no-catalog"])
+    assert result.exit_code == 0, result.output
+    answer = json.loads(result.output)
+    assert answer["cycloid"] is False
+    assert answer["reason"].startswith("not isomorphic to C(4,2,2,3)")
+    assert "(16 transitions, 6 tokens," in answer["reason"]
+    assert answer["synthesized"] and answer["synthesized"][0] == "C(4,2,2,3)"
+    observables = answer["observables"]
+    assert observables["transitions"] == 16 and observables["places"] == 32
+    assert observables["tokens"] == 6
+
+
+def test_identify_explains_json_dot_and_empty_files(tmp_path: Path) -> None:
+    for fmt in ("json", "dot"):
+        assert runner.invoke(app, ["export", "4,2,2,3", "--format", fmt, "-o",
+                                   str(tmp_path / f"c.{fmt}")]).exit_code == 0
+    empty = tmp_path / "empty.mgraph"
+    empty.write_bytes(b"")
+    blank = tmp_path / "blank.pnml"
+    blank.write_bytes(b"\xef\xbb\xbf \n\n")
+    result = runner.invoke(app, ["identify", "--no-catalog", str(tmp_path / "c.json"),
+                                 str(tmp_path / "c.dot"), str(empty), str(blank)])
+    assert result.exit_code == 1
+    assert (f"Error: {tmp_path / 'c.json'} is JSON; JSON nets from zoo export are not read by "
+            "identify, use PNML (zoo export --format pnml) or the net text format "
+            "(--format text)") in result.output
+    assert (f"Error: {tmp_path / 'c.dot'} is a Graphviz DOT file; DOT files are drawings, not "
+            "read by identify") in result.output
+    assert f"Error: {empty} is empty; give a PNML or net text file" in result.output
+    assert f"Error: {blank} is empty; give a PNML or net text file" in result.output
+    assert "no transitions" not in result.output

@@ -76,6 +76,11 @@ def test_export_reads_back_as_the_same_net(p: ParameterSet) -> None:
          "f line 1: place 'p': 'tokens' needs a number, e.g. 'tokens 1'"),
         ("place p: a -> b tokens -1",
          "f line 1: tokens must be a whole number >= 0, got '-1'"),
+        ("place p: a -> b tokens 99999999999999999999999",
+         "f line 1: tokens must be at most 999,999,999,999,999 (15 digits), got "
+         "'99999999999999999999999'"),
+        ("place p: a -> b tokens 1000000000000000 extra",
+         "f line 1: place 'p': unexpected 'extra' after the token count"),
         ("place p: a -> b weight 2",
          "f line 1: place 'p': arc weights are not part of the format; every arc of a marked "
          "graph has weight 1"),

@@ -244,6 +244,10 @@ def test_reader_accepts_pnml_without_namespace() -> None:
          "file"),
         (_net('<place id="p"><initialMarking><text>many</text></initialMarking></place>'),
          "x: the initial marking of place 'p' is 'many', not a whole number >= 0; write e.g. 1"),
+        (_net('<place id="p"><initialMarking><text>1000000000000000</text></initialMarking>'
+              '</place>'),
+         "x: the initial marking of place 'p' must be at most 999,999,999,999,999 (15 digits), "
+         "got '1000000000000000'"),
         (_net(_PAIR.replace('target="p"/>', 'target="p"><inscription><text>0</text>'
                             '</inscription></arc>')),
          "x: arc 'a' has inscription 0; a PT-net arc weight is at least 1"),
@@ -302,3 +306,19 @@ def test_json_export_describes_the_net() -> None:
     assert sum(pl["tokens"] for pl in forward) == p.beta  # theory.md §3.1: beta cars
     coordinates = {t["name"]: (t["xi"], t["eta"]) for t in data["transitions"]}
     assert coordinates == dict(zip(net.transitions, net.coordinates, strict=True))
+
+
+def test_safe_input_page_states_the_real_canonical_form_limit() -> None:
+    # docs/pnml.md quotes the canonical-form limit; a cycloid of area A has T + 2P = 5A encoding
+    # vertices (docs/architecture.md, canonical forms), so the limit is area CANONICAL_LIMIT // 5.
+    from zoo.canonical import CANONICAL_LIMIT
+    from zoo.formats import MAX_INPUT_BYTES
+
+    page = (Path(__file__).resolve().parent.parent / "docs" / "pnml.md").read_text("utf-8")
+    assert (f"`zoo.canonical.CANONICAL_LIMIT` = {CANONICAL_LIMIT:,} encoding vertices, cycloids "
+            f"up to area {CANONICAL_LIMIT // 5:,}") in page
+    assert "(the canonical-form limit)" not in page
+    # "every net up to area ~12,000 fits": zoo's own PNML of area 12,000 is under the limit
+    per_transition = len(pnml_document(build_net(ParameterSet(4, 2, 2, 3))).encode()) / 16
+    assert 840 <= per_transition <= 855  # "about 840–855 bytes per transition"
+    assert 12_000 * per_transition <= MAX_INPUT_BYTES

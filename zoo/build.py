@@ -37,6 +37,7 @@ from zoo.storage import database
 from zoo.storage.models import Base, sortable_key
 
 __all__ = [
+    "BUILD_TARGET_KEY",
     "MAX_BUILD_AREA",
     "READING_ID_STRIDE",
     "BuildProgress",
@@ -118,7 +119,7 @@ def build_catalog(
         raise
     jobs = max(1, int(jobs))
     seed_list = list(load_seed_directory() if seeds is None else seeds)
-    _record_encoding(catalog)
+    _record_encoding(catalog, max_area)
     done = set(catalog.complete_areas())
     todo = [a for a in range(1, max_area + 1) if a not in done]
     _sync_seeds(catalog, seed_list)
@@ -185,11 +186,16 @@ def check_build_bound(max_area: object) -> int:
     return max_area
 
 
-def _record_encoding(catalog: Catalog) -> None:
-    """Record the fingerprint encoding; refuse to mix encodings in one catalog."""
+#: ``catalog_info`` key holding the bound of the latest build started on the catalog; an
+#: interrupted default build is resumed by ``ensure_catalog`` when this says it was one.
+BUILD_TARGET_KEY = "build_target"
+
+
+def _record_encoding(catalog: Catalog, max_area: int) -> None:
+    """Record the fingerprint encoding and the build's bound; refuse to mix encodings."""
     from zoo.canonical import ENCODING_VERSION
 
-    with catalog.engine.begin() as connection:
+    with database.write_transaction(catalog.engine) as connection:
         row = connection.execute(select(_INFO.c.value).where(_INFO.c.key == "encoding")).first()
         if row is None:
             connection.execute(_INFO.insert(), [{"key": "encoding", "value": ENCODING_VERSION}])
@@ -200,13 +206,14 @@ def _record_encoding(catalog: Catalog) -> None:
                 "(mixing encodings would make fingerprints incomparable)"
             )
         _put_info(connection, "built_by", __version__)
+        _put_info(connection, BUILD_TARGET_KEY, str(max_area))
 
 
 def _sync_seeds(catalog: Catalog, seeds: Sequence[Seed]) -> None:
     """Make the seeds table equal to the seed files, linking seeds of stored areas."""
     table = _SEEDS
     wanted = {s.name: s for s in seeds}
-    with catalog.engine.begin() as connection:
+    with database.write_transaction(catalog.engine) as connection:
         stored = {row.name: row for row in connection.execute(select(table))}
         gone = sorted(set(stored) - set(wanted))
         if gone:
@@ -239,7 +246,7 @@ def write_area(catalog: Catalog, result: AreaClassification, seeds: Sequence[See
     started = time.perf_counter()
     area = result.area
     try:
-        with catalog.engine.begin() as connection:
+        with database.write_transaction(catalog.engine) as connection:
             row = connection.execute(select(_AREAS.c.complete).where(_AREAS.c.area == area)).first()
             if row is not None and row[0]:
                 return False
@@ -271,6 +278,8 @@ def write_area(catalog: Catalog, result: AreaClassification, seeds: Sequence[See
         # Another build may have stored this area meanwhile; anything else is an error.
         if area in catalog.complete_areas():
             return False
+        if database.is_busy(exc):
+            raise database.busy_error(catalog.location) from None
         reason = str(getattr(exc, "orig", exc)).strip().splitlines()[0]
         raise CatalogError(
             f"cannot store area {area} in catalog {catalog.location}: {reason}; nothing of "
@@ -360,27 +369,47 @@ def ensure_catalog(
     jobs: int | None = None,
     progress: BuildProgress | None = None,
 ) -> tuple[Catalog, BuildReport | None]:
-    """Open the catalog at location; when none exists yet, create and build it to max_area.
+    """Open the catalog at location, building the default one first when it is not there.
 
-    ``max_area`` defaults to ``zoo.catalog.DEFAULT_MAX_AREA`` (read at call time).
+    ``max_area`` defaults to ``zoo.catalog.DEFAULT_MAX_AREA`` (read at call time). This is what
+    makes ``zoo find`` work right after installation. It builds to ``max_area`` when
 
-    This is what makes ``zoo find`` work right after installation. An existing catalog is
-    never extended here (that is ``zoo build``'s decision).
+    * no catalog exists yet (or one exists that nothing was ever stored in), or
+    * the latest build started on the catalog was this same default build (its recorded
+      ``build_target`` equals ``max_area``) and it was interrupted before reaching it: the
+      main job resumes where Ctrl-C stopped it.
+
+    A catalog that a user built to another bound is never extended here (that is
+    ``zoo build``'s decision); queries beyond it get the completeness warning instead.
     """
+    bound = catalog_service.DEFAULT_MAX_AREA if max_area is None else max_area
+    check_build_bound(bound)
     url = database.resolve_location(location)
     if database.catalog_exists(url):
         catalog = Catalog.open(location)
-        if catalog.complete_areas() or catalog.info().get("encoding"):
-            return catalog, None
+        try:
+            if not _is_unfinished_default_build(catalog, bound):
+                return catalog, None
+        except BaseException:
+            catalog.close()
+            raise
     else:
         catalog = Catalog.open(location, create=True)
     try:
-        bound = catalog_service.DEFAULT_MAX_AREA if max_area is None else max_area
         report = build_catalog(catalog, bound, jobs=jobs or default_jobs(), progress=progress)
     except BaseException:
         catalog.close()
         raise
     return catalog, report
+
+
+def _is_unfinished_default_build(catalog: Catalog, bound: int) -> bool:
+    """Whether ``ensure_catalog`` should (re)build: never built, or its own build interrupted."""
+    info = catalog.info()
+    if not catalog.complete_areas() and not info.get("encoding"):
+        return True  # created but never built
+    target = info.get(BUILD_TARGET_KEY, "")
+    return target.isdigit() and int(target) == bound and catalog.complete_to() < bound
 
 
 def default_jobs() -> int:

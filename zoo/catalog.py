@@ -17,10 +17,12 @@ resuming) is ``zoo.build``; ``Catalog.build`` hands over to it.
 
 from __future__ import annotations
 
+import json
 import shlex
 from collections.abc import Iterable, Iterator, Sequence
 from dataclasses import dataclass
 from fractions import Fraction
+from functools import partial
 from pathlib import Path
 from types import TracebackType
 from typing import TYPE_CHECKING, Any
@@ -55,6 +57,9 @@ __all__ = [
     "FindResult",
     "FrameEntry",
     "SeedEntry",
+    "build_command",
+    "column_cell",
+    "extend_advice",
     "stored_class_id",
     "lookup_class_id",
 ]
@@ -183,6 +188,14 @@ class FindResult:
     columns: tuple[dict[str, str | None], ...] = ()  # requested field values, per entry
     #: The catalog's URL, so that a suggested ``zoo build`` names it (None: the default one).
     location: str | None = None
+    #: The requested fields per entry as typed values for machine formats (JSON, JSON Lines,
+    #: CSV): class-level fields as their JSON value (int, bool, "num/den"), reading- and
+    #: parameter-level fields as the sorted list of distinct values over the class's members.
+    values: tuple[dict[str, object], ...] = ()
+
+    def cell(self, index: int, name: str) -> str:
+        """The typed value of a requested field as CSV text (``column_cell``)."""
+        return column_cell(self.values[index].get(name) if self.values else None)
 
     @property
     def reaches_beyond(self) -> bool:
@@ -201,6 +214,19 @@ class FindResult:
         elif self.area_bound is None:
             note += " The query does not bound the area; larger areas are not in the answer."
         return note
+
+
+def column_cell(value: object) -> str:
+    """A typed column value as CSV text, written as the dump writes it: true/false, whole
+    numbers as digits, fractions as num/den, lists as compact JSON (``[1,2]``,
+    ``[false,true]``), nothing for None."""
+    if value is None:
+        return ""
+    if isinstance(value, bool):
+        return "true" if value else "false"
+    if isinstance(value, list):
+        return json.dumps(value, separators=(",", ":"))
+    return str(value)
 
 
 def build_command(max_area: int, location: str | None = None) -> str:
@@ -474,7 +500,8 @@ class Catalog:
 
         ``sort`` is a field name, ``-field`` for descending (default: area, then rank);
         ``seed`` keeps only classes with a seed whose name contains that text (any case);
-        ``columns`` names fields whose values (as text) come back in ``FindResult.columns``.
+        ``columns`` names fields whose values come back as display text in
+        ``FindResult.columns`` and typed in ``FindResult.values``.
         """
         from zoo.query import parse_query, referenced_area_bound
 
@@ -483,6 +510,7 @@ class Catalog:
         node = parse_query(query) if query.strip() else None
         ids, total = _query_class_ids(self.engine, node, sort, limit, seed)
         values = _column_values(self.engine, ids, columns or ())
+        typed = _typed_column_values(self.engine, ids, columns or ())
         with self.engine.connect() as connection:
             entries = self._entries(connection, ids)
         return FindResult(
@@ -493,6 +521,7 @@ class Catalog:
             area_bound=None if node is None else referenced_area_bound(node),
             columns=tuple(values.get(e.id, {}) for e in entries),
             location=self.url,
+            values=tuple(typed.get(e.id, {}) for e in entries),
         )
 
     def completeness_note(self, query: str) -> str:
@@ -803,3 +832,78 @@ def _column_values(
                 mapping = row._mapping
                 values[row.id] = {label.name: mapping[label.name] for label in labels}
     return values
+
+
+def _typed_value(field: Any, raw: Sequence[Any]) -> object:
+    """A stored field value (its columns, in ``Field.columns`` order) as its JSON value."""
+    from zoo.fields import FieldType
+
+    if raw[0] is None:
+        return None
+    if field.type is FieldType.BOOLEAN:
+        return bool(raw[0])
+    if field.type is FieldType.FRACTION:
+        return _fraction_text(raw[0], raw[1])
+    return int(raw[0])  # INTEGER, and BIG_INTEGER from its exact decimal text
+
+
+def _sort_key(field: Any, value: object) -> Any:
+    from zoo.fields import FieldType
+
+    if field.type is FieldType.FRACTION and isinstance(value, str):
+        return Fraction(value)
+    return value
+
+
+def _typed_column_values(
+    engine: Engine, ids: Sequence[str], columns: Sequence[str]
+) -> dict[str, dict[str, object]]:
+    """The requested fields of each class as typed values (see ``FindResult.values``).
+
+    Class-level fields give one value; reading- and parameter-level fields give every distinct
+    value over the class's readings or parameter sets, sorted, always as a list (even of one),
+    so that a reader of JSON sees one type per column.
+    """
+    from zoo.fields import require_field
+    from zoo.query import parse_field_names
+
+    names: list[str] = []
+    for column in columns:
+        names.extend(n for n in parse_field_names(column) if n not in names)
+    result: dict[str, dict[str, object]] = {class_id: {} for class_id in ids}
+    if not ids or not names:
+        return result
+    with engine.connect() as connection:
+        for name in names:
+            field = require_field(name)
+            table_name = next(iter(field.tables))
+            table = _TABLES[table_name]
+            stored = [table.c[spec.partition(".")[2]] for spec in field.columns]
+            per_class = table_name in ("classes", "frames")
+            for chunk in _chunks(list(ids)):
+                if table_name == "frames":
+                    statement = select(_CLASSES.c.id, *stored).join(
+                        _FRAMES, _FRAMES.c.id == _CLASSES.c.frame_id
+                    )
+                    owner = _CLASSES.c.id
+                elif table_name == "classes":
+                    statement = select(_CLASSES.c.id, *stored)
+                    owner = _CLASSES.c.id
+                else:
+                    owner = table.c.class_id
+                    statement = select(owner, *stored).distinct()
+                for row in connection.execute(statement.where(owner.in_(chunk))):
+                    value = _typed_value(field, tuple(row)[1:])
+                    if per_class:
+                        result[row[0]][field.name] = value
+                    else:
+                        listed = result[row[0]].setdefault(field.name, [])
+                        assert isinstance(listed, list)
+                        if value not in listed:
+                            listed.append(value)
+            if not per_class:
+                for class_values in result.values():
+                    listed = class_values.setdefault(field.name, [])
+                    assert isinstance(listed, list)
+                    listed.sort(key=partial(_sort_key, field))
+    return result

@@ -46,6 +46,8 @@ DRAW_AREA_LIMIT = 400
 DRAW_STATE_LIMIT = 300
 #: Above this many transitions (or states) the pictures leave out node labels.
 LABEL_LIMIT = 64
+#: Where along an arc of the states view its transition label sits (0 source, 1 target).
+STATE_LABEL_AT = 0.3
 
 Point = tuple[float, float]
 
@@ -178,9 +180,25 @@ def _parallelogram_extent(p: ParameterSet) -> tuple[float, float, float, float]:
     return (min(xs) - 2.5, max(xs) + 2.5, min(ys) - 1.5, max(ys) + 1.8)
 
 
-def _scale(width: float, height: float, unit: float = 0.75, largest: float = 36.0) -> float:
+#: Resolution of PNG pictures, dots per inch.
+PNG_DPI = 110
+#: Longest side of a picture, in inches: at PNG_DPI about 2,000 pixels, a size an image viewer
+#: or a paper's figure shows whole (common practice); larger nets are drawn smaller instead.
+LARGEST_INCHES = 17.5
+
+
+def _scale(
+    width: float, height: float, unit: float = 0.75, largest: float = LARGEST_INCHES
+) -> float:
     """Inches per page unit: ``unit`` unless the picture would pass ``largest`` inches."""
     return min(unit, largest / max(width, height, 1.0))
+
+
+def _title_size(canvas: _Canvas, base: float) -> float:
+    """A title font size in points that stays readable on a large page (about 1/60 of its
+    width, never below ``base``)."""
+    width_inches = float(canvas.ax.figure.get_size_inches()[0])
+    return max(base, min(28.0, width_inches * 72.0 / 60.0))
 
 
 def _parallelogram_size(net: NetPicture) -> Extent:
@@ -309,24 +327,15 @@ def _plot_rings(canvas: _Canvas, net: NetPicture, coloured: bool) -> None:
     gap = marker / 2 + 1
     place_points: list[Point] = []
     place_colours: list[str] = []
+    points = ring_place_points(net, positions, rings)
     for place, kind in enumerate(net.kinds):
         a, b = net.pre[place], net.post[place]
         source, target = positions[a], positions[b]
+        middle = points[place]
         if kind == "forward":
             colour = _PROCESS_COLOURS[rings[a] % len(_PROCESS_COLOURS)] if coloured else _FORWARD
-            middle = _ring_midpoint(source, target)
         else:
             colour = "#9a9a9a" if coloured else _BACKWARD
-            # Radial arcs to the next ring keep the place halfway. An arc from the outermost
-            # ring back to the innermost one crosses the picture: its place stays near its
-            # input transition and the arc is dashed. A chord within one ring (one forward
-            # cycle) bows to its left so that chords through the centre keep places apart.
-            if rings[b] == rings[a] + 1:
-                middle = _bow(source, target, 0.0)
-            elif rings[b] < rings[a]:
-                middle = _along(source, target, 0.22)
-            else:
-                middle = _bow(source, target, 0.1)
         wrap = kind == "backward" and rings[b] < rings[a]
         canvas.arc([source, middle], colour, gap, gap, dashed=wrap)
         canvas.arc([middle, target], colour, gap, gap, dashed=wrap)
@@ -366,7 +375,36 @@ def _plot_rings(canvas: _Canvas, net: NetPicture, coloured: bool) -> None:
         title = f"{p}: {count} processes of {length} steps"
     else:
         title = f"{p}: the net, A = {p.area} transitions, {len(net.places)} places"
-    ax.set_title(title + " (forward arcs counter-clockwise)", fontsize=10)
+    ax.set_title(title + " (forward arcs counter-clockwise)", fontsize=_title_size(canvas, 10))
+
+
+def ring_place_points(
+    net: NetPicture, positions: Sequence[Point] | None = None, rings: Sequence[int] | None = None
+) -> list[Point]:
+    """Page positions of the places in the ``net`` and ``processes`` views.
+
+    A forward place sits on its ring halfway between its transitions. A backward arc to the
+    next ring keeps its place halfway; an arc from the outermost ring back to the innermost one
+    crosses the picture, so its place stays near its input transition (the arc is dashed).
+    All chords within one ring (one forward cycle) skip the same number of transitions, so they
+    are tangent to one inner circle at their midpoints; places there would vanish into that
+    dense envelope of arcs, so they sit a quarter of the way along, where the chords spread.
+    """
+    if positions is None or rings is None:
+        positions, rings = ring_positions(net)
+    points: list[Point] = []
+    for place, kind in enumerate(net.kinds):
+        a, b = net.pre[place], net.post[place]
+        source, target = positions[a], positions[b]
+        if kind == "forward":
+            points.append(_ring_midpoint(source, target))
+        elif rings[b] == rings[a] + 1:
+            points.append(_bow(source, target, 0.0))
+        elif rings[b] < rings[a]:
+            points.append(_along(source, target, 0.22))
+        else:
+            points.append(_along(source, target, 0.25))
+    return points
 
 
 def _ring_midpoint(source: Point, target: Point) -> Point:
@@ -484,8 +522,9 @@ def _plot_states(
         path = [positions[a], positions[b]] if upward else _curve(positions[a], positions[b], 0.3)
         canvas.arc(path, colour, gap, gap, dashed=not upward, width=0.8)
         if labelled and upward and len(graph.arcs) <= 2 * LABEL_LIMIT:
-            mx = (positions[a][0] + positions[b][0]) / 2
-            my = (positions[a][1] + positions[b][1]) / 2
+            # A third of the way from the source, not halfway: two arcs that cross between
+            # the same two layers cross at their midpoints, so their labels would coincide.
+            mx, my = _along(positions[a], positions[b], STATE_LABEL_AT)
             ax.annotate(
                 net.transitions[t], (mx, my), fontsize=max(4.5, 6 * s / 0.7), color=colour,
                 ha="center", va="center", zorder=3,
@@ -504,7 +543,7 @@ def _plot_states(
     p = net.params
     ax.set_title(
         f"{p}: reachability graph, {len(graph.states)} states, {len(graph.arcs)} arcs "
-        "(M0 at the bottom; arcs back to earlier layers dashed)", fontsize=9,
+        "(M0 at the bottom; arcs back to earlier layers dashed)", fontsize=_title_size(canvas, 9),
     )
 
 
@@ -570,8 +609,9 @@ class _Canvas:
         self.nodes("places", [f"place-{name}" for name in net.places], points, marker="o",
                    size=marker, face="white", edge=list(colours), linewidth=1.2, zorder=4)
         marked = [i for i, k in enumerate(net.tokens) if k]
+        # A token stays at least 2.5 points across (about 4 pixels) on a crowded picture.
         self.nodes("tokens", [f"token-{net.places[i]}" for i in marked],
-                   [points[i] for i in marked], marker="o", size=marker * 0.45,
+                   [points[i] for i in marked], marker="o", size=max(marker * 0.5, 2.5),
                    face="#000000", edge="#000000", zorder=5)
 
     def finish(self) -> None:
@@ -661,7 +701,7 @@ def _render(plot: Callable[[_Canvas], None], extent: Extent, fmt: str) -> bytes:
             canvas.finish()
             buffer = io.BytesIO()
             metadata = {"Date": None} if fmt == "svg" else {"Software": "zoo"}
-            fig.savefig(buffer, format=fmt, dpi=110, metadata=metadata, bbox_inches="tight",
+            fig.savefig(buffer, format=fmt, dpi=PNG_DPI, metadata=metadata, bbox_inches="tight",
                         pad_inches=0.15)
         finally:
             plt.close(fig)

@@ -121,9 +121,18 @@ class Identification:
 class _NotCycloid(Exception):
     """Internal: carries the one-line reason a net is not a cycloid system."""
 
-    def __init__(self, reason: str) -> None:
+    def __init__(
+        self,
+        reason: str,
+        synthesized: tuple[ParameterSet, ...] = (),
+        observables: Observables | None = None,
+    ) -> None:
         super().__init__(reason)
         self.reason = reason
+        # Filled once the net has passed the structural checks (docs/identify.md), so that
+        # the JSON answer shows the numbers its reason quotes.
+        self.synthesized = synthesized
+        self.observables = observables
 
 
 # --- structural checks ---------------------------------------------------------------------
@@ -457,7 +466,13 @@ def identify_net(
     try:
         return _identify(net, location, use_catalog)
     except _NotCycloid as refusal:
-        return Identification(source=net.source, cycloid=False, reason=refusal.reason)
+        return Identification(
+            source=net.source,
+            cycloid=False,
+            reason=refusal.reason,
+            synthesized=refusal.synthesized,
+            observables=refusal.observables,
+        )
 
 
 def _identify(net: PlaceTransitionNet, location: str | None, use_catalog: bool) -> Identification:
@@ -513,24 +528,35 @@ def _identify(net: PlaceTransitionNet, location: str | None, use_catalog: bool) 
                 (graph.places[j], target.places[k]) for j, k in enumerate(place_map)
             ),
         )
-    check_safe(graph)
+    # The net passed the structural checks: the answer carries its observables and the
+    # candidates, which the reason quotes (docs/identify.md).
+    raise _NotCycloid(_refusal_reason(graph, seen, found), tuple(found), seen)
+
+
+def _refusal_reason(graph: MarkedGraph, seen: Observables, found: Sequence[ParameterSet]) -> str:
+    """The most specific reason a net that passed the structural checks matches no candidate."""
+    loop = seen.loop or 0
+    try:
+        check_safe(graph)
+    except _NotCycloid as refusal:
+        return refusal.reason
     if seen.tokens > seen.transitions:
-        raise _NotCycloid(
+        return (
             f"wrong token count: {seen.tokens} tokens on {seen.transitions} transitions, but a "
             "cycloid carries alpha + beta <= alpha*delta + beta*gamma = A tokens"
         )
     uneven = _uneven_transition(graph, loop)
     if uneven is not None:
-        raise _NotCycloid(uneven)
+        return uneven
     observed = (
         f"{seen.transitions} transitions, {seen.tokens} tokens, {seen.enabled} enabled "
         f"transition{'s' if seen.enabled != 1 else ''}, shortest cycle length {loop}"
     )
     if not found:
-        raise _NotCycloid(f"no cycloid system has its observables ({observed})")
+        return f"no cycloid system has its observables ({observed})"
     shown = ", ".join(str(p) for p in found[:4]) + (", ..." if len(found) > 4 else "")
     only = "the only cycloid system" if len(found) == 1 else "the cycloid systems"
-    raise _NotCycloid(f"not isomorphic to {shown}, {only} with its observables ({observed})")
+    return f"not isomorphic to {shown}, {only} with its observables ({observed})"
 
 
 def _missing_catalog_file(location: str | None) -> str | None:

@@ -1,4 +1,4 @@
-"""What ``zoo show PARAMS`` and ``zoo compare P1 P2`` report, as plain JSON-ready dicts.
+"""What ``zoo show PARAMS``, ``zoo compare P1 P2`` and ``zoo explore`` report, as plain dicts.
 
 The CLI only formats these dicts (a rich table or one JSON object); other tools read the JSON,
 so the key names are a published interface (docs/parameters.md lists them).
@@ -18,11 +18,13 @@ The module is core: it imports neither the storage layer nor the command line.
 
 from __future__ import annotations
 
+import time
 from dataclasses import dataclass
 from fractions import Fraction
 from typing import Any
 
 from zoo import algebra, invariants
+from zoo.behaviour import DEFAULT_STATE_LIMIT
 from zoo.errors import LimitExceeded
 from zoo.params import ParameterSet
 
@@ -265,3 +267,58 @@ def disagreement_message(report: Report) -> str:
         f"algebra and nauty disagree for {first} and {second} ({'; '.join(parts)}); "
         "this is a bug in zoo, please report it with this command line"
     )
+
+def exploration_report(p: ParameterSet, state_limit: int = DEFAULT_STATE_LIMIT) -> dict[str, Any]:
+    """What ``zoo explore`` reports, as a JSON-ready dict (keys in docs/explore.md).
+
+    The explicit side is zoo.behaviour's breadth-first search; the formulas are theory.md §10
+    (zoo.invariants). Raises LimitExceeded, naming --state-limit, when the search passes the
+    limit, with the number of states the formula predicts.
+    """
+    from zoo.behaviour import (
+        dead_transitions,
+        is_one_safe,
+        is_reversible,
+        place_bound,
+        reachability_graph,
+    )
+    from zoo.invariants import reachable_state_count, state_arc_count
+    from zoo.net import build_net
+
+    formula_states, formula_arcs = reachable_state_count(p), state_arc_count(p)
+    net = build_net(p)
+    started = time.perf_counter()
+    try:
+        rg = reachability_graph(net, state_limit)
+    except LimitExceeded as exc:
+        predicted = (
+            f"{formula_states:,}"
+            if formula_states < 10**15
+            else f"about 10^{len(str(formula_states)) - 1}"
+        )
+        raise LimitExceeded(f"{exc} (the closed formula predicts {predicted} states)") from None
+    dead = dead_transitions(rg)
+    facts = {
+        "live": not dead,
+        "one_safe": is_one_safe(rg),
+        "reversible": is_reversible(rg),
+        "dead_transitions": [net.transitions[t] for t in dead],
+        "bound": place_bound(rg),
+    }
+    seconds = time.perf_counter() - started
+    return {
+        "params": {"alpha": p.alpha, "beta": p.beta, "gamma": p.gamma, "delta": p.delta},
+        "label": str(p),
+        "area": p.area,
+        "places": net.place_count,
+        "tokens": net.token_count,
+        "state_limit": state_limit,
+        "states": rg.state_count,
+        "arcs": rg.arc_count,
+        "formula_states": formula_states,
+        "formula_arcs": formula_arcs,
+        "states_agree": rg.state_count == formula_states,
+        "arcs_agree": rg.arc_count == formula_arcs,
+        **facts,
+        "seconds": round(seconds, 6),
+    }

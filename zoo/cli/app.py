@@ -2,13 +2,130 @@
 
 from __future__ import annotations
 
+import inspect
+import re
 import sys
+from typing import Any
 
 import typer
+from typer.core import TyperGroup
 
 from zoo.errors import QuerySyntaxError, ZooError
 
+
+class PlainParameterError(typer.BadParameter):
+    """A bad option value said plainly: ``--format must be one of table, json; got 'xml'``."""
+
+    def format_message(self) -> str:
+        return self.message
+
+
+# Typer checks option values with pydantic, whose messages read "Value error, 'xml' is not one
+# of 'table', 'json'." or "Input should be greater than or equal to 1".
+_CHOICE = re.compile(r"^(?:Value error, )?(?P<got>.+) is not one of (?P<choices>.+?)\.?$")
+_AT_LEAST = re.compile(r"^Input should be greater than or equal to (?P<bound>-?\d+)$")
+_AT_MOST = re.compile(r"^Input should be less than or equal to (?P<bound>-?\d+)$")
+_INTEGER = re.compile(r"^Input should be a valid integer")
+
+
+def plain_parameter_message(error: typer.BadParameter) -> str | None:
+    """The rule a bad option value breaks, named plainly, or None for messages left as they are.
+
+    ``--format must be one of table, json; got 'xml'``; ``--state-limit must be at least 1;
+    got '0'``. The value comes from the validation error typer raised from, when there is one.
+    """
+    param = error.param
+    if param is None:
+        return None
+    names = [o for o in getattr(param, "opts", ()) if o.startswith("--")]
+    name = names[0] if names else (param.metavar or param.name or "the value")
+    message = str(error.message)
+    got = _invalid_input(error)
+    choice = _CHOICE.match(message)
+    if choice:
+        options = ", ".join(c.strip().strip("'\"") for c in choice.group("choices").split(","))
+        return f"{name} must be one of {options}; got {choice.group('got')}"
+    shown = "" if got is None else f"; got {got!r}"
+    if (bound := _AT_LEAST.match(message)) is not None:
+        return f"{name} must be at least {bound.group('bound')}{shown}"
+    if (bound := _AT_MOST.match(message)) is not None:
+        return f"{name} must be at most {bound.group('bound')}{shown}"
+    if _INTEGER.match(message):
+        return f"{name} must be a whole number{shown}"
+    return None
+
+
+def _invalid_input(error: BaseException) -> str | None:
+    cause = error.__cause__
+    errors = getattr(cause, "errors", None)
+    if not callable(errors):
+        return None
+    try:
+        found = errors()
+    except Exception:  # noqa: BLE001  (a foreign error object: fall back to no value)
+        return None
+    if found and isinstance(found[0], dict) and "input" in found[0]:
+        return str(found[0]["input"])
+    return None
+
+
+def unwrapped_help(text: str | None) -> str | None:
+    """Help text with each paragraph on one line, so that the terminal, not the docstring, wraps.
+
+    Typer keeps the single line breaks of every paragraph after the first, which would show the
+    docstrings' source line breaks in the middle of ``--help`` lines. A paragraph starting with
+    click's ``\\b`` marker keeps its lines.
+    """
+    if not text:
+        return text
+    paragraphs = inspect.cleandoc(text).split("\n\n")
+    return "\n\n".join(
+        p if p.startswith("\b") else " ".join(line.strip() for line in p.splitlines())
+        for p in paragraphs
+    )
+
+
+def _hide_flag_type(option: Any) -> None:
+    """--help takes no value: show no ``<bool>`` type for it (an empty metavar, as on our flags)."""
+    if option is not None and option.metavar is None:
+        option.metavar = ""
+
+
+class ZooGroup(TyperGroup):
+    """The command group of zoo: typer's, with bad option values reported plainly (one place)
+    and help paragraphs unwrapped."""
+
+    def __init__(self, *args: Any, **kwargs: Any) -> None:
+        super().__init__(*args, **kwargs)
+        self.help = unwrapped_help(self.help)
+        for command in self.commands.values():
+            command.help = unwrapped_help(command.help)
+
+    def get_command(self, ctx: Any, cmd_name: str) -> Any:
+        command = super().get_command(ctx, cmd_name)
+        if command is not None:
+            _hide_flag_type(command.get_help_option(ctx))
+        return command
+
+    def get_help_option(self, ctx: Any) -> Any:
+        option = super().get_help_option(ctx)
+        _hide_flag_type(option)
+        return option
+
+    def invoke(self, ctx: Any) -> Any:
+        try:
+            return super().invoke(ctx)
+        except PlainParameterError:
+            raise
+        except typer.BadParameter as error:
+            plain = plain_parameter_message(error)
+            if plain is None:
+                raise
+            raise PlainParameterError(plain, ctx=error.ctx, param=error.param) from None
+
+
 app = typer.Typer(
+    cls=ZooGroup,
     name="zoo",
     help="A research catalog of Petri's cycloids C(alpha, beta, gamma, delta).",
     no_args_is_help=True,

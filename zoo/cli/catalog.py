@@ -20,11 +20,14 @@ import typer
 
 from zoo.cli.app import app, fail
 from zoo.cli.common import (
+    FLAG,
     CatalogOption,
     ReadOnlyCatalogOption,
     TableOrJson,
+    fraction_cell,
     number_text,
     print_json,
+    print_whole_lines,
 )
 from zoo.errors import ParameterError, ZooError
 
@@ -204,7 +207,9 @@ def build(
     """Enumerate, classify and store every cycloid up to an area; resumes where it stopped.
 
     Each area is stored in one transaction, so an interrupted build keeps every area it
-    finished. Example: zoo build --max-area 60 --jobs 2
+    finished.
+
+    Example: zoo build --max-area 60 --jobs 2
     """
     from zoo.build import default_jobs
     from zoo.catalog import Catalog
@@ -255,7 +260,8 @@ def find(
         typer.Option("--format", "-f", help="table, csv, json (one array) or jsonl (JSON Lines)."),
     ] = FindFormat.table,
     count: Annotated[
-        bool, typer.Option("--count", help="Print only the number of matching classes.")
+        bool,
+        typer.Option("--count", metavar=FLAG, help="Print only the number of matching classes.")
     ] = False,
     seed: Annotated[
         str | None,
@@ -513,15 +519,15 @@ def _print_entry_table(report: dict[str, Any]) -> None:
         ("automorphisms (net)", report["net_automorphisms"]),
         ("tokens", report["tokens"]),
         ("enabled / semi-enabled", f"{report['enabled']} / {report['semi_enabled']}"),
-        ("cycle time", report["cycle_time"]),
+        ("cycle time", fraction_cell(report["cycle_time"])),
         ("transition group", "Z_{} x Z_{}".format(*report["group"])),
         ("cyclic group", report["cyclic"]),
         ("iteration depth", report["iteration"]),
-        ("fingerprint", report["fingerprint"]),
     ]
     for name, value in rows:
         table.add_row(name, _number_text(value))
     console.print(table)
+    print_whole_lines([("fingerprint", report["fingerprint"])])  # never folded: copied whole
     members = ", ".join(report["members"])
     console.print(f"[bold]Members[/bold] ({len(report['members'])}): {members}")
     readings = Table(show_header=True, header_style="bold", box=None, pad_edge=False)
@@ -536,7 +542,7 @@ def _print_entry_table(report: dict[str, Any]) -> None:
             r["label"],
             str(r["processes"]),
             "yes" if r["regular"] else "no",
-            r["slowness"],
+            fraction_cell(r["slowness"]),
             f"{fwd['count']}x{fwd['length']} ({fwd['tokens']})",
             f"{bwd['count']}x{bwd['length']} ({bwd['tokens']})",
             r["normal_form_beta_delta"],
@@ -564,7 +570,7 @@ def _print_frame_table(report: dict[str, Any]) -> None:
     console.print(f"[bold]{report['id']}[/bold]  {report['label']}  (area {report['area']}, frame)")
     console.print(f"net automorphisms: {_number_text(report['net_automorphisms'])}")
     console.print(f"lattice key (A, g, r): {tuple(report['lattice_key'])}")
-    console.print(f"fingerprint: {report['fingerprint']}")
+    print_whole_lines([("fingerprint", report["fingerprint"])])
     console.print(f"[bold]Classes on this frame[/bold] ({len(report['classes'])}):")
     for class_id, label in report["class_labels"].items():
         console.print(f"  {class_id}  {label}")

@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import json
 import os
+import re
 import sys
 from collections.abc import Iterable, Sequence
 from enum import StrEnum
@@ -38,6 +39,11 @@ ReadOnlyCatalogOption = Annotated[
     str | None,
     typer.Option("--db", help=f"{_DB_HELP} Only read: never built or changed."),
 ]
+
+
+#: The metavar of an on/off flag: empty, so that --help shows no value type for it (a flag
+#: takes no value).
+FLAG = ""
 
 
 class TableOrJson(StrEnum):
@@ -86,6 +92,27 @@ def refuse_unknown_options(command: str, arguments: list[str]) -> None:
             raise fail(f"no such option: {argument}; see zoo {command} --help", USAGE_ERROR)
 
 
+# Text that starts with letters, other than the C of C( ... ), is no parameter set (which starts
+# with a number); such text is taken for a misspelt identifier.
+_LETTERS_FIRST = re.compile(r"^\s*(?![Cc]\s*\()[A-Za-z]")
+
+
+def parse_typed_params(ref: str) -> ParameterSet:
+    """A parameter set written in ``ref``; text that looks like no reference at all says so.
+
+    ``parse_params`` explains a malformed parameter set (``4,2,2`` has three values, ``4,2,x,3``
+    a value that is no number); text that starts with letters, such as a misspelt identifier
+    (``XY16-3``, ``CY16--1``), is neither, and the message names both shapes instead of
+    counting values.
+    """
+    if _LETTERS_FIRST.match(ref):
+        raise ParameterError(
+            f"{ref.strip()!r} is neither a parameter set (4,2,2,3 or C(4,2,2,3)) nor a catalog "
+            "identifier (CY16-3, FR16-2)"
+        )
+    return parse_params(ref)
+
+
 def resolve_params(ref: str, db: str | None) -> ParameterSet:
     """A parameter set typed directly (or a label), or the label of a catalog class identifier.
 
@@ -96,7 +123,7 @@ def resolve_params(ref: str, db: str | None) -> ParameterSet:
 
     identifier = read_identifier(ref)
     if identifier is None:
-        return parse_params(ref)
+        return parse_typed_params(ref)
     if identifier.kind == "frame":
         raise ParameterError(
             f"{identifier} is a frame (an unmarked net, no initial marking); give a class "
@@ -109,30 +136,40 @@ def resolve_params(ref: str, db: str | None) -> ParameterSet:
     return parse_params(entry.label)
 
 
-def _catalog_may_exist(db: str | None) -> bool:
-    """False when the catalog location is a file that does not exist (docs/architecture.md).
+def _catalog_file(db: str | None) -> Path | None:
+    """The catalog file named by --db, $ZOO_CATALOG or the default (docs/architecture.md).
 
-    Importing the catalog service pulls in SQLAlchemy (about half a second); without a catalog
-    there is nothing to look up, so ``zoo show`` stays fast on a fresh installation.
+    None for a database URL (``://``), which only the catalog service can open.
     """
     location = (db or "").strip() or os.environ.get("ZOO_CATALOG", "").strip()
-    if location and "://" in location:
-        return True
+    if "://" in location:
+        return None
     if location:
-        return Path(location).expanduser().exists()
+        return Path(location).expanduser()
     import platformdirs
 
-    return (Path(platformdirs.user_data_dir("zoo")) / "catalog.sqlite3").exists()
+    return Path(platformdirs.user_data_dir("zoo")) / "catalog.sqlite3"
 
 
 def class_id_of(p: ParameterSet, db: str | None) -> str | None:
     """The catalog identifier of the class of p, or None; never builds a catalog.
 
-    An unreadable or outdated catalog must not hide what needs no catalog: its error becomes a
-    note on standard error and the identifier is None.
+    Importing the catalog service pulls in SQLAlchemy and Alembic (about half a second), so
+    without a catalog file nothing is imported, and a current SQLite catalog is asked through
+    the light path of ``zoo.cli.quicklookup``; only a URL or a file that path cannot vouch for
+    goes through ``zoo.catalog.lookup_class_id``. An unreadable or outdated catalog must not
+    hide what needs no catalog: its error becomes a note on standard error and the identifier
+    is None.
     """
-    if not _catalog_may_exist(db):
-        return None
+    catalog_file = _catalog_file(db)
+    if catalog_file is not None:
+        if not catalog_file.exists():
+            return None
+        from zoo.cli.quicklookup import quick_class_id
+
+        quick = quick_class_id(p, catalog_file)
+        if quick is None or isinstance(quick, str):
+            return quick
     try:
         from zoo.catalog import lookup_class_id
     except ModuleNotFoundError as exc:  # the catalog service is optional for these commands
@@ -166,13 +203,30 @@ def number_text(value: int) -> str:
     return f"{mantissa} ({len(digits):,} digits; exact in --format json)"
 
 
+def fraction_cell(text: str) -> str:
+    """A fraction ``num/den`` for a table: ``16/1`` reads ``16`` (JSON keeps ``num/den``)."""
+    numerator, slash, denominator = text.partition("/")
+    return numerator if slash and denominator.strip() == "1" else text
+
+
+def print_whole_lines(lines: Iterable[tuple[str, str]]) -> None:
+    """``name: value`` lines that are never wrapped or folded (fingerprints, for copy-paste)."""
+    for name, value in lines:
+        typer.echo(f"{name}: {value}")
+
+
 def print_property_table(
-    title: str, headings: Sequence[str], rows: Iterable[Sequence[str]]
+    title: str,
+    headings: Sequence[str],
+    rows: Iterable[Sequence[str]],
+    whole_lines: Iterable[tuple[str, str]] = (),
 ) -> None:
     """A titled rich table of properties (``show``, ``explore``, ``ring``).
 
     The first column names the property and never wraps, the second holds its value and folds
-    when long, an optional third says how it was found, dimmed.
+    when long, an optional third says how it was found, dimmed. ``whole_lines`` follow the
+    table as ``name: value`` lines, never wrapped: values meant to be copied, such as
+    fingerprints.
     """
     from rich.console import Console
     from rich.table import Table
@@ -184,6 +238,7 @@ def print_property_table(
     for row in rows:
         table.add_row(*row)
     Console(soft_wrap=False).print(table)
+    print_whole_lines(whole_lines)
 
 
 def write_file_atomically(path: Path, data: bytes) -> None:

@@ -1,14 +1,13 @@
 """Commands of zoo: ``show`` (every invariant of a parameter set), ``compare`` (two of them) and
 ``explore`` (the explicit reachability graph next to the closed formulas).
 
-A thin layer: the numbers come from ``zoo.report``, ``zoo.behaviour`` and ``zoo.invariants``;
-this module only parses arguments, asks the catalog for an identifier and formats the dicts as
-a rich table or as one JSON object.
+A thin layer: the numbers come from ``zoo.report`` (which asks ``zoo.behaviour`` and
+``zoo.invariants``); this module only parses arguments, asks the catalog for an identifier and
+formats the dicts as a rich table or as one JSON object.
 """
 
 from __future__ import annotations
 
-import time
 from collections.abc import Callable
 from typing import Annotated, Any
 
@@ -24,14 +23,15 @@ from zoo.cli.common import (
     TableOrJson,
     TableOrJsonOption,
     class_id_of,
+    fraction_cell,
     number_text,
+    parse_typed_params,
     print_json,
     print_property_table,
     refuse_unknown_options,
     resolve_params,
 )
-from zoo.errors import CatalogError, LimitExceeded, ZooError
-from zoo.params import ParameterSet, parse_params
+from zoo.errors import CatalogError, ZooError
 
 
 @app.command("version")
@@ -60,7 +60,7 @@ def show(
         if read_identifier(text) is not None:
             _show_catalog_entry(text.strip(), fmt.value, db)
             return
-        p = parse_params(text)
+        p = parse_typed_params(text)
         from zoo.report import invariant_report
 
         report = invariant_report(p)
@@ -72,22 +72,28 @@ def show(
 
 @app.command("compare", context_settings=LOOSE_ARGUMENTS)
 def compare(
-    first: Annotated[str, typer.Argument(metavar="P1", help="First parameter set, e.g. 4,2,2,3.")],
+    first: Annotated[
+        str,
+        typer.Argument(
+            metavar="P1", help="First parameter set (4,2,2,3), label or class identifier (CY16-3)."
+        ),
+    ],
     second: Annotated[
-        str, typer.Argument(metavar="P2", help="Second parameter set, e.g. 2,4,3,2.")
+        str, typer.Argument(metavar="P2", help="Second parameter set (2,4,3,2) or identifier.")
     ],
     fmt: TableOrJsonOption = TableOrJson.table,
     db: ReadOnlyCatalogOption = None,
 ) -> None:
     """Decide whether two parameter sets are the same reading, class and frame, and on what basis.
 
+    A class identifier (CY16-3) stands for its label, as in show, draw and export.
     Reading: same folding lattice and token counts. Class: isomorphic marked nets. Frame:
     isomorphic unmarked nets. Class and frame are decided by algebra and by nauty; if the two
     ever disagree the command says so and exits with status 1.
     """
     refuse_unknown_options("compare", [first, second])
     try:
-        p1, p2 = parse_params(first), parse_params(second)
+        p1, p2 = resolve_params(first, db), resolve_params(second, db)
         from zoo.report import compare_report, disagreement_message
 
         report = compare_report(p1, p2)
@@ -121,6 +127,8 @@ def explore(
     refuse_unknown_options("explore", ref)
     try:
         p = resolve_params(" ".join(ref), db)
+        from zoo.report import exploration_report
+
         report = exploration_report(p, state_limit)
     except ZooError as exc:
         raise fail(exc) from None
@@ -132,62 +140,6 @@ def explore(
             f"{report['formula_arcs']:,}); this is a bug in zoo, please report it with this "
             "command line"
         )
-
-
-def exploration_report(p: ParameterSet, state_limit: int = DEFAULT_STATE_LIMIT) -> dict[str, Any]:
-    """What ``zoo explore`` prints, as a JSON-ready dict (keys in docs/explore.md).
-
-    The explicit side is zoo.behaviour's breadth-first search; the formulas are theory.md §10
-    (zoo.invariants). Raises LimitExceeded, naming --state-limit, when the search passes the
-    limit, with the number of states the formula predicts.
-    """
-    from zoo.behaviour import (
-        dead_transitions,
-        is_one_safe,
-        is_reversible,
-        place_bound,
-        reachability_graph,
-    )
-    from zoo.invariants import reachable_state_count, state_arc_count
-    from zoo.net import build_net
-
-    formula_states, formula_arcs = reachable_state_count(p), state_arc_count(p)
-    net = build_net(p)
-    started = time.perf_counter()
-    try:
-        rg = reachability_graph(net, state_limit)
-    except LimitExceeded as exc:
-        predicted = (
-            f"{formula_states:,}"
-            if formula_states < 10**15
-            else f"about 10^{len(str(formula_states)) - 1}"
-        )
-        raise LimitExceeded(f"{exc} (the closed formula predicts {predicted} states)") from None
-    dead = dead_transitions(rg)
-    facts = {
-        "live": not dead,
-        "one_safe": is_one_safe(rg),
-        "reversible": is_reversible(rg),
-        "dead_transitions": [net.transitions[t] for t in dead],
-        "bound": place_bound(rg),
-    }
-    seconds = time.perf_counter() - started
-    return {
-        "params": {"alpha": p.alpha, "beta": p.beta, "gamma": p.gamma, "delta": p.delta},
-        "label": str(p),
-        "area": p.area,
-        "places": net.place_count,
-        "tokens": net.token_count,
-        "state_limit": state_limit,
-        "states": rg.state_count,
-        "arcs": rg.arc_count,
-        "formula_states": formula_states,
-        "formula_arcs": formula_arcs,
-        "states_agree": rg.state_count == formula_states,
-        "arcs_agree": rg.arc_count == formula_arcs,
-        **facts,
-        "seconds": round(seconds, 6),
-    }
 
 
 def _print_report(
@@ -334,14 +286,17 @@ def _print_show_table(report: dict[str, Any]) -> None:
         ),
         ("reachable states", number_text(report["states"]), "A·C(α+β,α)/(α+β)"),
         ("reachability arcs", number_text(report["state_arcs"]), "A·C(α+β−2,α−1)"),
-        ("slowness", report["slowness"].removesuffix("/1"), "(α − β)/(α + β)"),
-        ("cycle time", report["cycle_time"].removesuffix("/1"), "A/min(α,β)"),
+        ("slowness", fraction_cell(report["slowness"]), "(α − β)/(α + β)"),
+        ("cycle time", fraction_cell(report["cycle_time"]), "A/min(α,β)"),
         ("automorphisms (system)", _or_dash(report["automorphisms"]), "nauty"),
         ("automorphisms (net)", _or_dash(report["net_automorphisms"]), "nauty"),
-        ("fingerprint (system)", _or_dash(report["fingerprint"]), "nauty"),
-        ("fingerprint (net)", _or_dash(report["net_fingerprint"]), "nauty"),
     ]
-    print_property_table(report["label"], ("invariant", "value", "how"), rows)
+    # Fingerprints go on lines of their own: a folded one cannot be copied (nauty, v1:sha256).
+    fingerprints = [
+        ("fingerprint (system)", _or_dash(report["fingerprint"])),
+        ("fingerprint (net)", _or_dash(report["net_fingerprint"])),
+    ]
+    print_property_table(report["label"], ("invariant", "value", "how"), rows, fingerprints)
 
 
 def _print_compare_table(report: dict[str, Any]) -> None:

@@ -16,6 +16,7 @@ import typer
 
 from zoo.cli.app import app, fail
 from zoo.cli.common import (
+    FLAG,
     LOOSE_ARGUMENTS,
     ReadOnlyCatalogOption,
     ReferenceArgument,
@@ -23,14 +24,17 @@ from zoo.cli.common import (
     TableOrJson,
     TableOrJsonOption,
     class_id_of,
+    fraction_cell,
     number_text,
+    parse_typed_params,
     print_json,
     print_property_table,
     refuse_unknown_options,
     resolve_params,
     write_file_atomically,
 )
-from zoo.errors import ZooError
+from zoo.errors import FormatError, ZooError
+from zoo.identifiers import read_identifier
 
 #: Default --state-limit of ``ring --simulate``: the default of zoo.ring.simulation_report
 #: (tests/test_cli_core.py keeps the two equal).
@@ -78,15 +82,17 @@ def ring(
     items: Annotated[int, typer.Option("--items", "-c", help="Number of items C in the ring.")],
     slots: Annotated[int, typer.Option("--slots", "-g", help="Number of free slots G.")],
     individual_items: Annotated[
-        bool, typer.Option("--individual-items", help="Items are told apart (named).")
+        bool,
+        typer.Option("--individual-items", metavar=FLAG, help="Items are told apart (named).")
     ] = False,
     individual_slots: Annotated[
-        bool, typer.Option("--individual-slots", help="Free slots are told apart (named).")
+        bool,
+        typer.Option("--individual-slots", metavar=FLAG, help="Free slots are told apart (named).")
     ] = False,
     simulate: Annotated[
         bool,
         typer.Option(
-            "--simulate",
+            "--simulate", metavar=FLAG,
             help="Also simulate the ring cell by cell and check that its state graph is "
             "isomorphic to the cycloid's reachability graph (small rings only).",
         ),
@@ -135,8 +141,7 @@ def _print_ring_table(report: dict[str, Any]) -> None:
         ("backward cycles", f"{bwd['count']} × {bwd['length']} ({_count(bwd['tokens'], 'slot')} "
          "each)"),
         ("processes", f"{inv['processes']}{' (regular)' if inv['regular'] else ''}"),
-        ("slowness", inv["slowness"].removesuffix("/1")),
-        ("fingerprint", inv["fingerprint"] or "—"),
+        ("slowness", fraction_cell(inv["slowness"])),
     ]
     sim = report.get("simulation")
     if sim is not None:
@@ -145,7 +150,10 @@ def _print_ring_table(report: dict[str, Any]) -> None:
             ("simulation", f"{sim['states']:,} states, {sim['moves']:,} moves: {verdict} "
              "to the cycloid's reachability graph")
         )
-    print_property_table(f"ring design → {report['params']}", ("property", "value"), rows)
+    print_property_table(
+        f"ring design → {report['params']}", ("property", "value"), rows,
+        [("fingerprint", inv["fingerprint"] or "—")],
+    )
 
 
 def _count(n: int, noun: str) -> str:
@@ -207,29 +215,40 @@ def draw(
                err=True)
 
 
+#: Output suffixes ``draw`` tells the picture format from.
+PICTURE_SUFFIXES = {
+    ".svg": PictureFormat.svg, ".png": PictureFormat.png,
+    ".dot": PictureFormat.dot, ".gv": PictureFormat.dot,
+}
+
+
 def _picture_format(fmt: PictureFormat | None, output: Path | None) -> PictureFormat:
+    """--format, else the --output suffix (an unknown one is refused, as by export), else svg."""
     if fmt is not None:
         return fmt
-    if output is not None:
-        suffix = output.suffix.lower().lstrip(".")
-        if suffix in {f.value for f in PictureFormat}:
-            return PictureFormat(suffix)
-        if suffix == "gv":
-            return PictureFormat.dot
-    return PictureFormat.svg
+    if output is None:
+        return PictureFormat.svg
+    suffix = output.suffix.lower()
+    if suffix in PICTURE_SUFFIXES:
+        return PICTURE_SUFFIXES[suffix]
+    raise FormatError(
+        f"cannot tell the picture format from the suffix {suffix or '(none)'!r} of {output}; "
+        f"name the file {', '.join(PICTURE_SUFFIXES)} or give --format svg, png or dot"
+    )
 
 
 # --- cite ------------------------------------------------------------------------------
 
 
-@app.command("cite")
+@app.command("cite", context_settings=LOOSE_ARGUMENTS)
 def cite(
     ref: Annotated[
-        str,
+        list[str],
         typer.Argument(
             metavar="ID",
-            help="A class identifier (CY16-3), its label or any member, or a frame "
-            "identifier (FR16-2).",
+            help="A class identifier (CY16-3), its label or any member (4,2,2,3 or '4 2 2 3'), "
+            "or a frame identifier (FR16-2).",
+            show_default=False,
         ),
     ],
     fmt: Annotated[
@@ -245,9 +264,15 @@ def cite(
     from zoo.catalog import Catalog
     from zoo.cite import cite as make_citation
 
+    refuse_unknown_options("cite", ref)
+    text = " ".join(ref).strip()
     try:
+        if read_identifier(text) is None:
+            # A parameter set in any spelling (four words too), or a clear refusal of text
+            # that is neither, before the catalog is opened.
+            text = str(parse_typed_params(text))
         with Catalog.open(db) as catalog:
-            citation = make_citation(catalog, ref)
+            citation = make_citation(catalog, text)
     except ZooError as exc:
         raise fail(exc) from None
     if fmt is CiteFormat.json:

@@ -18,6 +18,7 @@ import typer
 
 from zoo.cli.app import USER_ERROR, app, fail, print_error
 from zoo.cli.common import (
+    FLAG,
     LOOSE_ARGUMENTS,
     ReadOnlyCatalogOption,
     ReferenceArgument,
@@ -156,12 +157,13 @@ def identify(
     ] = AnswerFormat.text,
     mapping: Annotated[
         bool,
-        typer.Option("--mapping", "-m",
+        typer.Option("--mapping", "-m", metavar=FLAG,
                      help="Text format: also list which element is which coordinate."),
     ] = False,
     db: ReadOnlyCatalogOption = None,
     no_catalog: Annotated[
-        bool, typer.Option("--no-catalog", help="Do not look up class identifiers.")
+        bool,
+        typer.Option("--no-catalog", metavar=FLAG, help="Do not look up class identifiers.")
     ] = False,
 ) -> None:
     """Decide whether the net in each file is a cycloid system, and which one.

@@ -12,6 +12,7 @@ before a single byte is parsed (docs/pnml.md, "Safe input").
 from __future__ import annotations
 
 import os
+import re
 from dataclasses import dataclass
 from pathlib import Path
 from typing import TYPE_CHECKING
@@ -30,6 +31,22 @@ MAX_INPUT_BYTES = 10 * 1024 * 1024
 
 PLACE = "place"
 TRANSITION = "transition"
+
+#: Most digits of a token count or arc weight a reader accepts: a count is read as an exact
+#: integer, and a net with more tokens than this on one place is no safe marked graph anyway.
+MAX_COUNT_DIGITS = 15
+MAX_COUNT = 10**MAX_COUNT_DIGITS - 1
+
+
+def count_too_large(what: str, text: str) -> str | None:
+    """``WHAT must be at most MAX_COUNT ...`` when text is a whole number over the limit."""
+    digits = text.strip().lstrip("+")
+    if digits.isdigit() and digits.isascii() and len(digits) > MAX_COUNT_DIGITS:
+        shown = digits if len(digits) <= 40 else digits[:37] + "..."
+        return (
+            f"{what} must be at most {MAX_COUNT:,} ({MAX_COUNT_DIGITS} digits), got {shown!r}"
+        )
+    return None
 
 
 @dataclass(frozen=True)
@@ -142,15 +159,49 @@ def read_net_file(
     source = str(path)
     if looks_like_xml(data):
         return pnml.parse_pnml(data, source)
+    refuse_unread_formats(data, source)
     return nettext.parse_net_text(data, source)
 
 
+# A DOT file starts with an optional 'strict', then 'graph' or 'digraph' (Graphviz grammar),
+# possibly after // or # comment lines.
+_DOT_START = re.compile(
+    rb"^(?:\s*(?://|#)[^\n]*\n)*\s*(?:strict\s+)?(?:di)?graph\b", re.IGNORECASE
+)
+
+
+def refuse_unread_formats(data: bytes, source: str) -> None:
+    """``FormatError`` for an empty file and for the formats zoo writes but does not read.
+
+    Without this, an empty file would pass as a net without transitions and a JSON or DOT file
+    would get a net text syntax error about its first line.
+    """
+    text = data.removeprefix(b"\xef\xbb\xbf")
+    if not text.strip():
+        raise FormatError(f"{source} is empty; give a PNML or net text file")
+    head = text.lstrip()[:1]
+    if head in (b"{", b"["):
+        raise FormatError(
+            f"{source} is JSON; JSON nets from zoo export are not read by identify, use PNML "
+            "(zoo export --format pnml) or the net text format (--format text)"
+        )
+    if _DOT_START.match(text[:4096]):
+        raise FormatError(
+            f"{source} is a Graphviz DOT file; DOT files are drawings, not read by identify, use "
+            "PNML (zoo export --format pnml) or the net text format (--format text)"
+        )
+
+
 __all__ = [
+    "MAX_COUNT",
+    "MAX_COUNT_DIGITS",
     "MAX_INPUT_BYTES",
+    "count_too_large",
     "Arc",
     "drawing_coordinates",
     "PlaceTransitionNet",
     "looks_like_xml",
     "read_limited",
     "read_net_file",
+    "refuse_unread_formats",
 ]

@@ -23,7 +23,14 @@ import os
 import re
 
 from zoo.errors import FormatError
-from zoo.formats import MAX_INPUT_BYTES, Arc, PlaceTransitionNet, read_limited
+from zoo.formats import (
+    MAX_COUNT_DIGITS,
+    MAX_INPUT_BYTES,
+    Arc,
+    PlaceTransitionNet,
+    count_too_large,
+    read_limited,
+)
 
 #: The usual file suffix of the format (any suffix is read: the reader looks at the content).
 SUFFIX = ".mgraph"
@@ -96,8 +103,9 @@ def parse_net_text(data: bytes | str, source: str = "<text>") -> PlaceTransition
             count_text = match.group("tokens")
             count = 0
             if count_text is not None:
-                if not re.fullmatch(r"\d{1,15}", count_text):
-                    raise fail(number, f"tokens must be a whole number >= 0, got {count_text!r}")
+                if not re.fullmatch(rf"\d{{1,{MAX_COUNT_DIGITS}}}", count_text):
+                    raise fail(number, count_too_large("tokens", count_text)
+                               or f"tokens must be a whole number >= 0, got {count_text!r}")
                 count = int(count_text)
             for end in ("source", "target"):
                 if match.group(end) == name:
@@ -158,6 +166,9 @@ def _explain_place(line: str) -> str:
             return f"place {name!r}: 'tokens' needs a number, e.g. 'tokens 1'"
         if len(parts) > 3:
             return f"place {name!r}: unexpected {' '.join(parts[3:])!r} after the token count"
+        too_large = count_too_large("tokens", parts[2])
+        if too_large:
+            return f"place {name!r}: {too_large}"
         return f"place {name!r}: tokens must be a whole number >= 0, got {parts[2]!r}"
     if len(parts) >= 2 and parts[1].startswith("weight"):
         return (f"place {name!r}: arc weights are not part of the format; every arc of a "

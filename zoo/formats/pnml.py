@@ -26,11 +26,13 @@ import defusedxml.ElementTree as SafeET
 
 from zoo.errors import FormatError
 from zoo.formats import (
+    MAX_COUNT_DIGITS,
     MAX_INPUT_BYTES,
     PLACE,
     TRANSITION,
     Arc,
     PlaceTransitionNet,
+    count_too_large,
     drawing_coordinates,
     read_limited,
 )
@@ -49,7 +51,7 @@ GRID = 40
 #: Free border around the drawing, so that every position is positive.
 MARGIN = 40
 
-_COUNT = re.compile(r"^\s*[+]?(\d{1,15})\s*$")
+_COUNT = re.compile(rf"^\s*[+]?(\d{{1,{MAX_COUNT_DIGITS}}})\s*$")
 _TOOL = "zoo"
 
 
@@ -238,6 +240,9 @@ def _count(text: str | None, what: str, source: str, default: int) -> int:
         return default
     match = _COUNT.match(text)
     if match is None:
+        too_large = count_too_large(what, text)
+        if too_large:
+            raise FormatError(f"{source}: {too_large}")
         raise FormatError(
             f"{source}: {what} is {text.strip()[:40]!r}, not a whole number >= 0; write e.g. 1"
         )

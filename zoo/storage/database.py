@@ -16,6 +16,8 @@ from __future__ import annotations
 import os
 import shlex
 import sqlite3
+from collections.abc import Iterator
+from contextlib import contextmanager
 from dataclasses import dataclass
 from importlib.resources import files
 from pathlib import Path
@@ -28,7 +30,7 @@ from alembic.runtime.migration import MigrationContext
 from alembic.script import ScriptDirectory
 from sqlalchemy import Connection, Engine, create_engine, event, inspect, text
 from sqlalchemy.engine import URL, make_url
-from sqlalchemy.exc import ArgumentError, DBAPIError, NoSuchModuleError
+from sqlalchemy.exc import ArgumentError, DBAPIError, NoSuchModuleError, OperationalError
 
 from zoo.errors import CatalogError
 from zoo.storage.models import sortable_key
@@ -243,7 +245,52 @@ def _configure_sqlite(engine: Engine, *, migrating: bool) -> None:
 
     @event.listens_for(engine, "begin")
     def _on_begin(connection: Connection) -> None:
-        connection.exec_driver_sql(begin)
+        writing = connection.get_execution_options().get(_WRITE_OPTION, False)
+        connection.exec_driver_sql("BEGIN IMMEDIATE" if writing else begin)
+
+
+#: Execution option that marks a connection whose transactions write (see write_transaction).
+_WRITE_OPTION = "zoo_write"
+
+
+@contextmanager
+def write_transaction(engine: Engine) -> Iterator[Connection]:
+    """A transaction that will write: committed at the end of the block, rolled back on error.
+
+    On SQLite it starts with ``BEGIN IMMEDIATE``, taking the write lock at once. A plain
+    ``BEGIN`` starts as a reader, and a reader that later writes while another connection holds
+    the write lock fails at once with "database is locked" (SQLite cannot wait there without
+    risking a deadlock, https://sqlite.org/lang_transaction.html); taking the lock first lets
+    the busy timeout make the second writer wait instead. Other databases begin as usual.
+    A writer still locked out after the busy timeout raises ``CatalogBusy``.
+    """
+    with engine.connect() as connection:
+        connection.execution_options(**{_WRITE_OPTION: True})
+        try:
+            with connection.begin():
+                yield connection
+        except OperationalError as exc:
+            if is_busy(exc):
+                raise busy_error(display_location(engine.url)) from None
+            raise
+
+
+def is_busy(exc: BaseException) -> bool:
+    """Whether a database error says that another connection holds the lock."""
+    text = str(getattr(exc, "orig", exc)).lower()
+    return "database is locked" in text or "database table is locked" in text
+
+
+def busy_error(shown: str) -> CatalogBusy:
+    """The one-line error for a catalog that another zoo is writing."""
+    return CatalogBusy(
+        f"catalog {shown} is busy: another zoo is writing it (waited "
+        f"{SQLITE_BUSY_TIMEOUT_MS / 1000:g} s for its lock); try again when it finishes"
+    )
+
+
+class CatalogBusy(CatalogError):
+    """Another process holds the catalog's write lock for longer than the busy timeout."""
 
 
 def _first_line(exc: BaseException) -> str:
@@ -441,6 +488,10 @@ def catalog_exists(url: str) -> bool:
 
 __all__ = [
     "CATALOG_ENV_VAR",
+    "CatalogBusy",
+    "busy_error",
+    "is_busy",
+    "write_transaction",
     "DEFAULT_FILE_NAME",
     "SchemaChange",
     "alembic_config",
