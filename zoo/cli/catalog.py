@@ -310,7 +310,7 @@ def find(
         try:
             if count:
                 number = catalog.count(query, seed=seed)
-                note = _note_for(catalog, query)
+                note = catalog.completeness_note(query)
                 typer.echo(str(number))
                 typer.echo(note, err=True)
                 return
@@ -320,14 +320,6 @@ def find(
     except ZooError as exc:  # a query syntax error also gets its caret line
         raise fail(exc) from None
     _print_find(result, fmt, columns)
-
-
-def _note_for(catalog: Catalog, query: str) -> str:
-    from zoo.catalog import FindResult
-    from zoo.query import parse_query, referenced_area_bound
-
-    bound = referenced_area_bound(parse_query(query)) if query.strip() else None
-    return FindResult(query, (), 0, catalog.complete_to(), bound).completeness_note()
 
 
 def _requested_columns(columns: Sequence[str] | None) -> list[str]:
@@ -367,17 +359,6 @@ def _cell(result: FindResult, index: int, name: str, custom: bool) -> str:
         value = result.columns[index].get(name) if result.columns else None
         return "" if value is None else str(value)
     return _default_value(entry, name)
-
-
-def _typed(text: str | None) -> object:
-    """A column value for JSON: whole numbers as numbers, yes/no as booleans, else the text."""
-    if text is None:
-        return None
-    if text in ("yes", "no"):
-        return text == "yes"
-    if text.lstrip("-").isdigit():
-        return int(text)
-    return text
 
 
 def _print_find(result: FindResult, fmt: FindFormat, columns: Sequence[str] | None) -> None:
@@ -421,7 +402,11 @@ def _print_find(result: FindResult, fmt: FindFormat, columns: Sequence[str] | No
                     entry.id,
                     entry.label,
                     entry.area,
-                    *(_cell(result, index, n, custom) for n in names if n != "members"),
+                    *(
+                        result.cell(index, n) if custom else _default_value(entry, n)
+                        for n in names
+                        if n != "members"
+                    ),
                     _members_text(entry, short=False),
                 ]
             )
@@ -437,7 +422,7 @@ def _print_find(result: FindResult, fmt: FindFormat, columns: Sequence[str] | No
             }
             for name in names:
                 if name not in item:
-                    item[name] = _typed(result.columns[index].get(name))
+                    item[name] = result.values[index].get(name)
             objects.append(item)
         else:
             objects.append(entry.as_dict())
