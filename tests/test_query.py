@@ -8,6 +8,7 @@ from pathlib import Path
 import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
+from query_trees import query_trees
 
 from zoo.errors import QuerySyntaxError
 from zoo.fields import FIELDS, Field, FieldType, Level, field_named
@@ -56,33 +57,7 @@ def values_for(field: Field) -> st.SearchStrategy[Value]:
     return st.integers(-(10**12), 10**12) | st.integers(-3, 300)
 
 
-@st.composite
-def leaves(draw: st.DrawFn) -> Node:
-    field = draw(st.sampled_from(FIELDS))
-    values = values_for(field)
-    if field.type is FieldType.BOOLEAN:
-        if draw(st.booleans()):
-            return BoolField(field.name)
-        return Comparison(field.name, draw(st.sampled_from(["=", "!="])), draw(values))
-    kind = draw(st.sampled_from(["compare", "range", "member"]))
-    if kind == "compare":
-        op = draw(st.sampled_from(["=", "!=", "<", "<=", ">", ">="]))
-        return Comparison(field.name, op, draw(values))
-    if kind == "range":
-        low, high = sorted((draw(values), draw(values)))
-        return Range(field.name, low, high)
-    return Membership(field.name, tuple(draw(st.lists(values, min_size=1, max_size=4))))
-
-
-trees = st.recursive(
-    leaves(),
-    lambda children: st.one_of(
-        children.map(Not),
-        st.lists(children, min_size=2, max_size=4).map(lambda ops: And(tuple(ops))),
-        st.lists(children, min_size=2, max_size=4).map(lambda ops: Or(tuple(ops))),
-    ),
-    max_leaves=12,
-)
+trees = query_trees(values_for, width=4, max_leaves=12)
 
 
 @settings(max_examples=250, deadline=None)

@@ -26,6 +26,7 @@ from typing import Any
 import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
+from query_trees import query_trees
 from sqlalchemy import Engine, create_engine, select
 from sqlalchemy.orm import Session
 
@@ -306,34 +307,7 @@ def values_for(field: Field) -> st.SearchStrategy[Value]:
     return near | st.sampled_from([2**63, -(2**63), 10**30, -1])
 
 
-@st.composite
-def leaves(draw: st.DrawFn) -> Node:
-    field = draw(st.sampled_from(FIELDS))
-    values = values_for(field)
-    if field.type is FieldType.BOOLEAN:
-        kind = draw(st.sampled_from(["bare", "compare"]))
-        if kind == "bare":
-            return BoolField(field.name)
-        return Comparison(field.name, draw(st.sampled_from(["=", "!="])), draw(values))
-    kind = draw(st.sampled_from(["compare", "compare", "range", "member"]))
-    if kind == "compare":
-        op = draw(st.sampled_from(["=", "!=", "<", "<=", ">", ">="]))
-        return Comparison(field.name, op, draw(values))
-    if kind == "range":
-        low, high = sorted((draw(values), draw(values)))
-        return Range(field.name, low, high)
-    return Membership(field.name, tuple(draw(st.lists(values, min_size=1, max_size=3))))
-
-
-trees = st.recursive(
-    leaves(),
-    lambda children: st.one_of(
-        children.map(Not),
-        st.lists(children, min_size=2, max_size=3).map(lambda ops: And(tuple(ops))),
-        st.lists(children, min_size=2, max_size=3).map(lambda ops: Or(tuple(ops))),
-    ),
-    max_leaves=6,
-)
+trees = query_trees(values_for, width=3, max_leaves=6)
 
 
 # --- tests ----------------------------------------------------------------------------------
