@@ -146,3 +146,14 @@ def migrated_db_url(db_url: str) -> str:
 
     upgrade(db_url)
     return db_url
+
+
+@pytest.fixture(scope="session")
+def small_catalog(tmp_path_factory: pytest.TempPathFactory) -> str:
+    """A catalog of every area up to 12, built once per session; tests only read it."""
+    from zoo.catalog import Catalog
+
+    path = tmp_path_factory.mktemp("small-catalog") / "catalog.sqlite3"
+    with Catalog.open(str(path), create=True) as catalog:
+        catalog.build(12)
+    return str(path)

@@ -21,26 +21,18 @@ from zoo.cli import app
 from zoo.errors import CatalogError, NotInCatalog
 
 
-@pytest.fixture(scope="module")
-def catalog_path(tmp_path_factory: pytest.TempPathFactory) -> str:
-    path = tmp_path_factory.mktemp("cite") / "catalog.sqlite3"
-    with Catalog.open(str(path), create=True) as catalog:
-        catalog.build(12)
-    return str(path)
-
-
-def test_catalog_version_is_read_from_the_catalog(catalog_path: str) -> None:
+def test_catalog_version_is_read_from_the_catalog(small_catalog: str) -> None:
     from zoo.canonical import ENCODING_VERSION
 
-    with Catalog.open(catalog_path) as catalog:
+    with Catalog.open(small_catalog) as catalog:
         version = catalog_version(catalog)
         assert version == CatalogVersion(__version__, ENCODING_VERSION, 12)
         assert catalog.complete_to() == 12
     assert str(version) == f"zoo {__version__}/{ENCODING_VERSION}/A<=12"
 
 
-def test_bibtex_fields(catalog_path: str) -> None:
-    with Catalog.open(catalog_path) as catalog:
+def test_bibtex_fields(small_catalog: str) -> None:
+    with Catalog.open(small_catalog) as catalog:
         entry = catalog.get("C(3,3,1,3)")  # theory.md §11: A = 12
         citation = cite(catalog, "C(3,3,1,3)")
     assert citation.identifier == entry.id and citation.label == entry.label
@@ -60,8 +52,8 @@ def test_bibtex_fields(catalog_path: str) -> None:
     assert re.fullmatch(r"\d{4}", bib.fields["year"])
 
 
-def test_plain_text_citation(catalog_path: str) -> None:
-    with Catalog.open(catalog_path) as catalog:
+def test_plain_text_citation(small_catalog: str) -> None:
+    with Catalog.open(small_catalog) as catalog:
         citation = cite(catalog, "CY12-1")
         entry = catalog.get("CY12-1")
     text = citation.text()
@@ -71,7 +63,7 @@ def test_plain_text_citation(catalog_path: str) -> None:
         assert part in text
 
 
-def test_key_is_stable_and_derived_from_the_identifier(catalog_path: str) -> None:
+def test_key_is_stable_and_derived_from_the_identifier(small_catalog: str) -> None:
     assert bibtex_key("CY16-3") == "zoo:CY16-3"
     assert bibtex_key("cy16-3") == "zoo:CY16-3"
     with pytest.raises(NotInCatalog):
@@ -89,8 +81,8 @@ def test_special_characters_are_escaped() -> None:
     assert "\\_" in entry.fields["note"] and "\\%" in entry.fields["note"]
 
 
-def test_frame_citation(catalog_path: str) -> None:
-    with Catalog.open(catalog_path) as catalog:
+def test_frame_citation(small_catalog: str) -> None:
+    with Catalog.open(small_catalog) as catalog:
         frame_id = catalog.get("CY12-1").frame_id
         citation = cite(catalog, frame_id)
     assert citation.kind == "frame" and citation.key == f"zoo:{frame_id}"
@@ -104,28 +96,28 @@ def test_unbuilt_catalog_cannot_be_cited(tmp_path) -> None:  # type: ignore[no-u
             catalog_version(catalog)
 
 
-def test_cli_cite_both_and_json(catalog_path: str) -> None:
+def test_cli_cite_both_and_json(small_catalog: str) -> None:
     runner = CliRunner()
-    result = runner.invoke(app, ["cite", "CY12-2", "--db", catalog_path])
+    result = runner.invoke(app, ["cite", "CY12-2", "--db", small_catalog])
     assert result.exit_code == 0, result.output
     assert result.stdout.startswith("@misc{zoo:CY12-2,")
     parse_string(result.stdout.split("\n\n")[0], "bibtex")
-    result = runner.invoke(app, ["cite", "CY12-2", "--db", catalog_path, "--format", "json"])
+    result = runner.invoke(app, ["cite", "CY12-2", "--db", small_catalog, "--format", "json"])
     data = json.loads(result.stdout)
     assert data["id"] == "CY12-2" and data["bibtex_key"] == "zoo:CY12-2"
     assert data["catalog_version"]["complete_to"] == 12
 
 
-def test_cli_cite_unknown_entry(catalog_path: str) -> None:
-    result = CliRunner().invoke(app, ["cite", "CY12-999", "--db", catalog_path])
+def test_cli_cite_unknown_entry(small_catalog: str) -> None:
+    result = CliRunner().invoke(app, ["cite", "CY12-999", "--db", small_catalog])
     assert result.exit_code == 1
     assert result.stderr.startswith("Error: ")
     assert len(result.stderr.strip().splitlines()) == 1
 
 
-def test_bibtex_has_no_characters_that_ot1_misprints(catalog_path: str) -> None:
+def test_bibtex_has_no_characters_that_ot1_misprints(small_catalog: str) -> None:
     """LaTeX's OT1 text encoding has no < or > glyph (it prints ¡ and ¿), common practice."""
-    with Catalog.open(catalog_path) as catalog:
+    with Catalog.open(small_catalog) as catalog:
         citation = cite(catalog, "CY12-1")
     bibtex = citation.bibtex()
     assert "<" not in bibtex and ">" not in bibtex

@@ -36,29 +36,21 @@ from zoo.release import (
 
 
 @pytest.fixture(scope="module")
-def catalog_path(tmp_path_factory: pytest.TempPathFactory) -> str:
-    path = tmp_path_factory.mktemp("release") / "catalog.sqlite3"
-    with Catalog.open(str(path), create=True) as catalog:
-        catalog.build(12)
-    return str(path)
-
-
-@pytest.fixture(scope="module")
-def class_total(catalog_path: str) -> int:
-    with Catalog.open(catalog_path) as catalog:
+def class_total(small_catalog: str) -> int:
+    with Catalog.open(small_catalog) as catalog:
         return sum(s.classes for s in catalog.stats())
 
 
 @pytest.fixture
-def release_dir(catalog_path: str, tmp_path: Path) -> Path:
+def release_dir(small_catalog: str, tmp_path: Path) -> Path:
     folder = tmp_path / "rel"
-    result = CliRunner().invoke(app, ["release", "--output", str(folder), "--db", catalog_path])
+    result = CliRunner().invoke(app, ["release", "--output", str(folder), "--db", small_catalog])
     assert result.exit_code == 0, result.output
     return folder
 
 
-def test_entries_come_by_area_then_rank_in_batches(catalog_path: str, class_total: int) -> None:
-    with Catalog.open(catalog_path) as catalog:
+def test_entries_come_by_area_then_rank_in_batches(small_catalog: str, class_total: int) -> None:
+    with Catalog.open(small_catalog) as catalog:
         small = [e.id for e in iter_catalog_entries(catalog, batch=5)]
         large = [e.id for e in iter_catalog_entries(catalog)]
     assert small == large and len(small) == class_total == len(set(small))
@@ -66,9 +58,9 @@ def test_entries_come_by_area_then_rank_in_batches(catalog_path: str, class_tota
     assert keys == sorted(keys)
 
 
-def test_jsonl_dump_is_the_catalog(catalog_path: str, tmp_path: Path, class_total: int) -> None:
+def test_jsonl_dump_is_the_catalog(small_catalog: str, tmp_path: Path, class_total: int) -> None:
     out = tmp_path / "all.jsonl"
-    with Catalog.open(catalog_path) as catalog:
+    with Catalog.open(small_catalog) as catalog:
         summary = write_dump(iter_catalog_entries(catalog), "jsonl", out)
         records = [json.loads(line) for line in out.read_text(encoding="utf-8").splitlines()]
         assert len(records) == summary.classes == class_total
@@ -80,8 +72,8 @@ def test_jsonl_dump_is_the_catalog(catalog_path: str, tmp_path: Path, class_tota
     assert all(r["members"] and "loop" in r and r["readings"] for r in records)
 
 
-def test_csv_dump_parses_with_one_row_per_class(catalog_path: str, class_total: int) -> None:
-    with Catalog.open(catalog_path) as catalog:
+def test_csv_dump_parses_with_one_row_per_class(small_catalog: str, class_total: int) -> None:
+    with Catalog.open(small_catalog) as catalog:
         text = "".join(iter_dump_lines(iter_catalog_entries(catalog), "csv"))
         rows = list(csv.DictReader(io.StringIO(text, newline="")))
         assert len(rows) == class_total
@@ -93,9 +85,9 @@ def test_csv_dump_parses_with_one_row_per_class(catalog_path: str, class_total: 
     assert json.loads(row["readings"]) == [dict(r) for r in entry.readings]
 
 
-def test_dump_is_streamed(catalog_path: str) -> None:
+def test_dump_is_streamed(small_catalog: str) -> None:
     """Lines come out while the entries are still being produced: an endless source works."""
-    with Catalog.open(catalog_path) as catalog:
+    with Catalog.open(small_catalog) as catalog:
         some = list(itertools.islice(iter_catalog_entries(catalog), 10))
     endless = itertools.cycle(some)
     for fmt in ("csv", "jsonl"):
@@ -103,11 +95,11 @@ def test_dump_is_streamed(catalog_path: str) -> None:
         assert len(first) == 2_000
 
 
-def test_release_verifies(release_dir: Path, class_total: int, catalog_path: str) -> None:
+def test_release_verifies(release_dir: Path, class_total: int, small_catalog: str) -> None:
     report = verify_release(release_dir)
     assert report.ok, report.problems
     manifest = read_manifest(release_dir)
-    with Catalog.open(catalog_path) as catalog:
+    with Catalog.open(small_catalog) as catalog:
         version = catalog_version(catalog)
     assert manifest["catalog"]["complete_to"] == 12 == version.complete_to
     assert manifest["catalog"]["zoo_version"] == version.zoo_version
@@ -159,15 +151,15 @@ def test_missing_and_extra_files_are_named(release_dir: Path) -> None:
     assert "notes.txt: in the folder but in no checksum list" in problems
 
 
-def test_release_never_overwrites(release_dir: Path, catalog_path: str) -> None:
+def test_release_never_overwrites(release_dir: Path, small_catalog: str) -> None:
     before = {p.name: p.read_bytes() for p in release_dir.iterdir()}
-    result = CliRunner().invoke(app, ["release", "-o", str(release_dir), "--db", catalog_path])
+    result = CliRunner().invoke(app, ["release", "-o", str(release_dir), "--db", small_catalog])
     assert result.exit_code == 1
     assert "already exists and is not empty" in result.stderr
     assert {p.name: p.read_bytes() for p in release_dir.iterdir()} == before
 
 
-def test_failed_release_leaves_nothing(tmp_path: Path, catalog_path: str) -> None:
+def test_failed_release_leaves_nothing(tmp_path: Path, small_catalog: str) -> None:
     def broken() -> object:
         raise ZooError("simulated failure while reading the catalog")
 
@@ -186,16 +178,16 @@ def test_not_a_release(tmp_path: Path) -> None:
         verify_release(tmp_path)
 
 
-def test_cli_dump_formats(catalog_path: str, tmp_path: Path, class_total: int) -> None:
+def test_cli_dump_formats(small_catalog: str, tmp_path: Path, class_total: int) -> None:
     runner = CliRunner()
     out = tmp_path / "classes.csv"
-    result = runner.invoke(app, ["dump", "--output", str(out), "--db", catalog_path])
+    result = runner.invoke(app, ["dump", "--output", str(out), "--db", small_catalog])
     assert result.exit_code == 0, result.output
     assert len(list(csv.DictReader(out.open(newline="")))) == class_total
-    result = runner.invoke(app, ["dump", "--format", "jsonl", "--db", catalog_path])
+    result = runner.invoke(app, ["dump", "--format", "jsonl", "--db", small_catalog])
     assert result.exit_code == 0
     assert len(result.stdout.splitlines()) == class_total
-    result = runner.invoke(app, ["dump", "--db", catalog_path])
+    result = runner.invoke(app, ["dump", "--db", small_catalog])
     assert result.exit_code == 1 and "dump format not given" in result.stderr
 
 
@@ -214,14 +206,14 @@ def test_dump_from_each_database(db_url: str, tmp_path: Path) -> None:
     assert len(lines) == total > 0
 
 
-def test_missing_or_damaged_areas_are_refused(catalog_path: str, tmp_path: Path) -> None:
+def test_missing_or_damaged_areas_are_refused(small_catalog: str, tmp_path: Path) -> None:
     import sqlite3
 
-    with Catalog.open(catalog_path) as catalog:
+    with Catalog.open(small_catalog) as catalog:
         with pytest.raises(CatalogError, match="area 13 is not stored completely"):
             list(iter_catalog_entries(catalog, [13]))
     damaged = tmp_path / "damaged.sqlite3"
-    shutil.copy(catalog_path, damaged)
+    shutil.copy(small_catalog, damaged)
     with sqlite3.connect(damaged) as connection:  # remove one class of area 12 by hand
         for table in ("parameter_sets", "readings"):
             connection.execute(f"DELETE FROM {table} WHERE class_id = 'CY12-2'")
@@ -242,9 +234,9 @@ def test_missing_or_damaged_areas_are_refused(catalog_path: str, tmp_path: Path)
         ["draw", "4,2,2,3", "--output", "/proc/zoo-x.svg"],
     ],
 )
-def test_unwritable_output_is_one_error_line(command: list[str], catalog_path: str) -> None:
+def test_unwritable_output_is_one_error_line(command: list[str], small_catalog: str) -> None:
     """/proc accepts no new files (Linux procfs, common practice): an error, not a traceback."""
-    extra = [] if command[0] == "draw" else ["--db", catalog_path]
+    extra = [] if command[0] == "draw" else ["--db", small_catalog]
     result = CliRunner().invoke(app, [*command, *extra])
     assert result.exit_code == 1, result.output
     assert result.exception is None or isinstance(result.exception, SystemExit)

@@ -154,16 +154,6 @@ def test_simulation_report() -> None:
 # --- command line ------------------------------------------------------------------------
 
 
-@pytest.fixture(scope="module")
-def small_catalog(tmp_path_factory: pytest.TempPathFactory) -> str:
-    from zoo.catalog import Catalog
-
-    path = tmp_path_factory.mktemp("ring-catalog") / "catalog.sqlite3"
-    with Catalog.open(str(path), create=True) as catalog:
-        catalog.build(12)
-    return str(path)
-
-
 def test_cli_ring_json_with_catalog(small_catalog: str) -> None:
     from zoo.catalog import Catalog
 
