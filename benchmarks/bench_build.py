@@ -28,10 +28,10 @@ import tempfile
 import time
 from pathlib import Path
 
-from zoo.canonical import net_form, system_form
-from zoo.catalog import Catalog
-from zoo.classify import classify_area
-from zoo.enumeration import iter_parameter_sets
+from zoo.catalog.classify import classify_area
+from zoo.catalog.enumeration import iter_parameter_sets
+from zoo.catalog.service import Catalog
+from zoo.core.canonical import net_form, system_form
 
 QUERIES = (
     ("count", "processes = 3 and area < 100", None),
@@ -63,24 +63,35 @@ def bench_build(max_area: int, jobs: int) -> Path:
         children_before.ru_utime + children_before.ru_stime
     )
     print(f"Fresh build, area <= {max_area}, --jobs {jobs}")
-    print(f"  stored: {report.parameter_sets:,} parameter sets, {report.readings:,} readings, "
-          f"{report.classes:,} classes, {report.frames:,} frames")
-    print(f"  nauty canonical forms: {report.canonical_forms:,} "
-          f"(classes + frames + {report.canonical_forms - report.classes - report.frames} "
-          "checks of merges without an explicit isomorphism)")
+    print(
+        f"  stored: {report.parameter_sets:,} parameter sets, {report.readings:,} readings, "
+        f"{report.classes:,} classes, {report.frames:,} frames"
+    )
+    print(
+        f"  nauty canonical forms: {report.canonical_forms:,} "
+        f"(classes + frames + {report.canonical_forms - report.classes - report.frames} "
+        "checks of merges without an explicit isomorphism)"
+    )
     print(f"  wall time: {wall:.2f} s (schema creation {opened - started:.2f} s)")
     stages = report.stage_seconds
-    print(f"  stage seconds, summed over workers: enumeration+algebra "
-          f"{stages['classify_algebra']:.2f}, nauty forms (nets included) "
-          f"{stages['classify_canonical']:.2f}; writer (SQLite): {stages['write']:.2f}")
-    print(f"  CPU seconds: writer {time.process_time() - cpu_before:.2f}, workers "
-          f"{worker_cpu:.2f}")
-    print(f"  peak resident memory: writer {_megabytes(own.ru_maxrss):.0f} MB, largest worker "
-          f"{_megabytes(children.ru_maxrss):.0f} MB")
-    print(f"  load average at the end: {os.getloadavg()[0]:.2f} on {os.cpu_count()} cores "
-          "(other work on the machine stretches wall time, not CPU time)")
-    print(f"  wall time if the {jobs} worker(s) had their cores to themselves: about "
-          f"{max(worker_cpu / jobs, time.process_time() - cpu_before):.1f} s (CPU-bound estimate)")
+    print(
+        f"  stage seconds, summed over workers: enumeration+algebra "
+        f"{stages['classify_algebra']:.2f}, nauty forms (nets included) "
+        f"{stages['classify_canonical']:.2f}; writer (SQLite): {stages['write']:.2f}"
+    )
+    print(f"  CPU seconds: writer {time.process_time() - cpu_before:.2f}, workers {worker_cpu:.2f}")
+    print(
+        f"  peak resident memory: writer {_megabytes(own.ru_maxrss):.0f} MB, largest worker "
+        f"{_megabytes(children.ru_maxrss):.0f} MB"
+    )
+    print(
+        f"  load average at the end: {os.getloadavg()[0]:.2f} on {os.cpu_count()} cores "
+        "(other work on the machine stretches wall time, not CPU time)"
+    )
+    print(
+        f"  wall time if the {jobs} worker(s) had their cores to themselves: about "
+        f"{max(worker_cpu / jobs, time.process_time() - cpu_before):.1f} s (CPU-bound estimate)"
+    )
     print(f"  catalog file: {location.stat().st_size / 2**20:.1f} MB")
     return location
 
@@ -107,13 +118,17 @@ def bench_naive(max_area: int) -> None:
     print(f"Classification of area <= {max_area}, one process, CPU seconds")
     print(f"  catalog approach (algebra, nauty once per class and frame): {ours:.2f} s")
     print(f"  naive approach (nauty on every parameter set, {calls:,} forms): {naive:.2f} s")
-    print(f"  ratio naive / catalog: {naive / ours:.1f}x "
-          f"(both found {ours_classes:,} classes and {ours_frames:,} frames)")
+    print(
+        f"  ratio naive / catalog: {naive / ours:.1f}x "
+        f"(both found {ours_classes:,} classes and {ours_frames:,} frames)"
+    )
 
 
 def bench_queries(location: Path, runs: int = 20) -> None:
-    print(f"Queries on {location.name} (median of {runs} runs, catalog already open; "
-          "wall ms / CPU ms)")
+    print(
+        f"Queries on {location.name} (median of {runs} runs, catalog already open; "
+        "wall ms / CPU ms)"
+    )
     with Catalog.open(str(location)) as catalog:
         for name, query, limit in QUERIES:
             walls, cpus = [], []
@@ -127,17 +142,21 @@ def bench_queries(location: Path, runs: int = 20) -> None:
                     size = len(catalog.find(query, sort=sort, limit=limit).entries)
                 walls.append(time.perf_counter() - started)
                 cpus.append(time.process_time() - cpu)
-            print(f"  {name:32s} {statistics.median(walls) * 1000:7.1f} / "
-                  f"{statistics.median(cpus) * 1000:6.1f} ms  "
-                  f"({size:,} {'counted' if name == 'count' else 'entries'}): {query}")
+            print(
+                f"  {name:32s} {statistics.median(walls) * 1000:7.1f} / "
+                f"{statistics.median(cpus) * 1000:6.1f} ms  "
+                f"({size:,} {'counted' if name == 'count' else 'entries'}): {query}"
+            )
         walls, cpus = [], []
         for _ in range(runs):
             started, cpu = time.perf_counter(), time.process_time()
             catalog.get("C(4,2,2,3)")
             walls.append(time.perf_counter() - started)
             cpus.append(time.process_time() - cpu)
-        print(f"  {'get by parameter set':32s} {statistics.median(walls) * 1000:7.1f} / "
-              f"{statistics.median(cpus) * 1000:6.1f} ms")
+        print(
+            f"  {'get by parameter set':32s} {statistics.median(walls) * 1000:7.1f} / "
+            f"{statistics.median(cpus) * 1000:6.1f} ms"
+        )
 
 
 def bench_existing(location: Path) -> None:
@@ -151,8 +170,12 @@ def main(argv: list[str] | None = None) -> int:
     parser.add_argument("--jobs", type=int, default=2)
     parser.add_argument("--naive-area", type=int, default=40)
     parser.add_argument("--skip-naive", action="store_true")
-    parser.add_argument("--queries-only", type=Path, metavar="CATALOG",
-                        help="only time the queries on an existing catalog file")
+    parser.add_argument(
+        "--queries-only",
+        type=Path,
+        metavar="CATALOG",
+        help="only time the queries on an existing catalog file",
+    )
     args = parser.parse_args(argv)
     if args.queries_only is not None:
         bench_existing(args.queries_only)

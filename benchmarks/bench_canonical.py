@@ -17,11 +17,11 @@ import statistics
 import time
 from collections.abc import Callable
 
-from zoo import algebra
-from zoo.canonical import canonical_form
-from zoo.enumeration import iter_parameter_sets
-from zoo.net import build_net
-from zoo.params import ParameterSet
+from zoo.catalog.enumeration import iter_parameter_sets
+from zoo.core import algebra
+from zoo.core.canonical import canonical_form
+from zoo.core.net import build_net
+from zoo.core.params import ParameterSet
 
 
 def representatives(area: int, key: Callable[[ParameterSet], object]) -> list[ParameterSet]:

@@ -151,7 +151,7 @@ def migrated_db_url(db_url: str) -> str:
 @pytest.fixture(scope="session")
 def small_catalog(tmp_path_factory: pytest.TempPathFactory) -> str:
     """A catalog of every area up to 12, built once per session; tests only read it."""
-    from zoo.catalog import Catalog
+    from zoo.catalog.service import Catalog
 
     path = tmp_path_factory.mktemp("small-catalog") / "catalog.sqlite3"
     with Catalog.open(str(path), create=True) as catalog:

@@ -10,8 +10,8 @@ from collections.abc import Callable
 
 from hypothesis import strategies as st
 
-from zoo.fields import FIELDS, Field, FieldType
-from zoo.query import And, BoolField, Comparison, Membership, Node, Not, Or, Range, Value
+from zoo.query.fields import FIELDS, Field, FieldType
+from zoo.query.parser import And, BoolField, Comparison, Membership, Node, Not, Or, Range, Value
 
 ValuesFor = Callable[[Field], st.SearchStrategy[Value]]
 

@@ -16,7 +16,7 @@ from datetime import UTC, datetime
 import sqlalchemy as sa
 from alembic import op
 
-from zoo import __version__
+from zoo.version import __version__
 
 revision: str = "0001"
 down_revision: str | None = None

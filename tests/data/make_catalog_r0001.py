@@ -8,9 +8,9 @@ rebuild the file from scratch:
     .venv/bin/python tests/data/make_catalog_r0001.py
 
 Rows: every parameter set of area 2..5, grouped into classes by the nauty fingerprint of the
-marked net (zoo.canonical.system_form) and into frames by the fingerprint of the unmarked net
-(net_form), cross-checked against the algebraic class and frame keys (zoo.algebra); invariants
-from zoo.invariants. Ranks follow design.md §2 (by smallest member).
+marked net (zoo.core.canonical.system_form) and into frames by the fingerprint of the unmarked net
+(net_form), cross-checked against the algebraic class and frame keys (zoo.core.algebra); invariants
+from zoo.core.invariants. Ranks follow design.md §2 (by smallest member).
 """
 
 from __future__ import annotations
@@ -23,9 +23,9 @@ from pathlib import Path
 
 from sqlalchemy import MetaData
 
-from zoo import algebra, invariants
-from zoo.canonical import ENCODING_VERSION, net_form, system_form
-from zoo.params import ParameterSet
+from zoo.core import algebra, invariants
+from zoo.core.canonical import ENCODING_VERSION, net_form, system_form
+from zoo.core.params import ParameterSet
 from zoo.storage.database import open_engine, resolve_location, upgrade
 
 MAX_AREA = 5
@@ -65,8 +65,9 @@ def main() -> None:
     tables.reflect(engine)
     now = datetime(2026, 11, 30, 12, 0, tzinfo=UTC)
     with engine.begin() as conn:
-        conn.execute(tables.tables["catalog_info"].insert(), [{"key": "encoding",
-                                                               "value": ENCODING_VERSION}])
+        conn.execute(
+            tables.tables["catalog_info"].insert(), [{"key": "encoding", "value": ENCODING_VERSION}]
+        )
         reading_id = 0
         for area in range(2, MAX_AREA + 1):
             members = parameter_sets(area)
@@ -80,11 +81,20 @@ def main() -> None:
                 form, key = net_form(label), algebra.lattice_key(label)
                 frame_id = f"FR{area}-{rank}"
                 frame_of.update({p: frame_id for p in frame})
-                conn.execute(tables.tables["frames"].insert().values(
-                    id=frame_id, area=area, rank=rank, label=str(label),
-                    fingerprint=form.fingerprint, automorphisms=str(form.automorphisms),
-                    lattice_g=key.g, lattice_r=key.r,
-                ))
+                conn.execute(
+                    tables.tables["frames"]
+                    .insert()
+                    .values(
+                        id=frame_id,
+                        area=area,
+                        rank=rank,
+                        label=str(label),
+                        fingerprint=form.fingerprint,
+                        automorphisms=str(form.automorphisms),
+                        lattice_g=key.g,
+                        lattice_r=key.r,
+                    )
+                )
             reading_count = 0
             for rank, entry in enumerate(classes, 1):
                 label = entry[0]
@@ -95,21 +105,38 @@ def main() -> None:
                 states = invariants.reachable_state_count(label)
                 arcs = invariants.state_arc_count(label)
                 cycle_time = invariants.cycle_time(label)
-                conn.execute(tables.tables["classes"].insert().values(
-                    id=class_id, area=area, rank=rank, label=str(label),
-                    label_alpha=label.alpha, label_beta=label.beta, label_gamma=label.gamma,
-                    label_delta=label.delta, frame_id=frame_of[label],
-                    fingerprint=system_form(label).fingerprint,
-                    loop=invariants.minimal_cycle_length(label),
-                    states=str(states), states_key=f"{len(str(states)):04d}{states}",
-                    state_arcs=str(arcs), state_arcs_key=f"{len(str(arcs)):04d}{arcs}",
-                    automorphisms=str(system_form(label).automorphisms),
-                    tokens=label.alpha + label.beta, enabled=invariants.enabled_count(label),
-                    semi_enabled=invariants.semi_enabled_count(label),
-                    cycle_time_num=cycle_time.numerator, cycle_time_den=cycle_time.denominator,
-                    group_d1=d1, cyclic=d1 == 1, iteration=algebra.iteration_depth(label),
-                    reading_count=len(readings), member_count=len(entry),
-                ))
+                conn.execute(
+                    tables.tables["classes"]
+                    .insert()
+                    .values(
+                        id=class_id,
+                        area=area,
+                        rank=rank,
+                        label=str(label),
+                        label_alpha=label.alpha,
+                        label_beta=label.beta,
+                        label_gamma=label.gamma,
+                        label_delta=label.delta,
+                        frame_id=frame_of[label],
+                        fingerprint=system_form(label).fingerprint,
+                        loop=invariants.minimal_cycle_length(label),
+                        states=str(states),
+                        states_key=f"{len(str(states)):04d}{states}",
+                        state_arcs=str(arcs),
+                        state_arcs_key=f"{len(str(arcs)):04d}{arcs}",
+                        automorphisms=str(system_form(label).automorphisms),
+                        tokens=label.alpha + label.beta,
+                        enabled=invariants.enabled_count(label),
+                        semi_enabled=invariants.semi_enabled_count(label),
+                        cycle_time_num=cycle_time.numerator,
+                        cycle_time_den=cycle_time.denominator,
+                        group_d1=d1,
+                        cyclic=d1 == 1,
+                        iteration=algebra.iteration_depth(label),
+                        reading_count=len(readings),
+                        member_count=len(entry),
+                    )
+                )
                 for reading in readings:
                     reading_id += 1
                     first = reading[0]
@@ -117,27 +144,60 @@ def main() -> None:
                     forward = invariants.forward_cycles(first)
                     backward = invariants.backward_cycles(first)
                     w = invariants.slowness(first)
-                    conn.execute(tables.tables["readings"].insert().values(
-                        id=reading_id, class_id=class_id, area=area, alpha=first.alpha,
-                        beta=first.beta, lattice_g=key.g, lattice_r=key.r,
-                        processes=invariants.process_count(first),
-                        regular=invariants.is_regular(first),
-                        slowness_num=w.numerator, slowness_den=w.denominator,
-                        forward_count=forward.count, forward_length=forward.length,
-                        forward_tokens=forward.tokens, backward_count=backward.count,
-                        backward_length=backward.length, backward_tokens=backward.tokens,
-                        nf_beta_delta=str(algebra.normal_form_beta_delta(first)),
-                        nf_alpha_gamma=str(algebra.normal_form_alpha_gamma(first)),
-                    ))
-                    conn.execute(tables.tables["parameter_sets"].insert(), [
-                        {"alpha": p.alpha, "beta": p.beta, "gamma": p.gamma, "delta": p.delta,
-                         "area": area, "reading_id": reading_id, "class_id": class_id}
-                        for p in reading
-                    ])
-            conn.execute(tables.tables["areas"].insert().values(
-                area=area, complete=True, parameter_sets=len(members), readings=reading_count,
-                classes=len(classes), frames=len(frames), built_at=now, seconds=0.01,
-            ))
+                    conn.execute(
+                        tables.tables["readings"]
+                        .insert()
+                        .values(
+                            id=reading_id,
+                            class_id=class_id,
+                            area=area,
+                            alpha=first.alpha,
+                            beta=first.beta,
+                            lattice_g=key.g,
+                            lattice_r=key.r,
+                            processes=invariants.process_count(first),
+                            regular=invariants.is_regular(first),
+                            slowness_num=w.numerator,
+                            slowness_den=w.denominator,
+                            forward_count=forward.count,
+                            forward_length=forward.length,
+                            forward_tokens=forward.tokens,
+                            backward_count=backward.count,
+                            backward_length=backward.length,
+                            backward_tokens=backward.tokens,
+                            nf_beta_delta=str(algebra.normal_form_beta_delta(first)),
+                            nf_alpha_gamma=str(algebra.normal_form_alpha_gamma(first)),
+                        )
+                    )
+                    conn.execute(
+                        tables.tables["parameter_sets"].insert(),
+                        [
+                            {
+                                "alpha": p.alpha,
+                                "beta": p.beta,
+                                "gamma": p.gamma,
+                                "delta": p.delta,
+                                "area": area,
+                                "reading_id": reading_id,
+                                "class_id": class_id,
+                            }
+                            for p in reading
+                        ],
+                    )
+            conn.execute(
+                tables.tables["areas"]
+                .insert()
+                .values(
+                    area=area,
+                    complete=True,
+                    parameter_sets=len(members),
+                    readings=reading_count,
+                    classes=len(classes),
+                    frames=len(frames),
+                    built_at=now,
+                    seconds=0.01,
+                )
+            )
     engine.dispose()
     # One self-contained file: fold the WAL back in and leave rollback-journal mode.
     with sqlite3.connect(TARGET) as plain:

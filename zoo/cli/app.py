@@ -4,7 +4,6 @@ from __future__ import annotations
 
 import inspect
 import re
-import sys
 from typing import Any
 
 import typer
@@ -158,37 +157,6 @@ def print_error(problem: str | ZooError) -> None:
     typer.echo(f"Error: {problem}", err=True)
     if isinstance(problem, QuerySyntaxError) and problem.query:
         typer.echo(problem.caret_text(), err=True)
-
-
-def main() -> None:
-    """Console entry point: run the app; a ZooError becomes ``Error: ...`` and exit status 1."""
-    import zoo.cli  # noqa: F401  (registers every command on ``app``)
-
-    try:
-        # Outside standalone mode an Exit raised by a command comes back as the return value.
-        status = app(standalone_mode=False)
-        if status == INTERRUPTED:  # typer turns Ctrl-C inside a command into Exit(130)
-            typer.echo("Interrupted.", err=True)
-        if isinstance(status, int) and status:
-            sys.exit(status)
-    except ZooError as exc:  # a command that let one through: still one line, no traceback
-        print_error(exc)
-        sys.exit(USER_ERROR)
-    except KeyboardInterrupt:
-        typer.echo("Interrupted.", err=True)
-        sys.exit(INTERRUPTED)
-    except typer.Exit as exc:
-        sys.exit(exc.exit_code)
-    except typer.Abort:
-        typer.echo("Aborted.", err=True)
-        sys.exit(USER_ERROR)
-    except typer.TyperException as exc:  # usage errors arrive here in non-standalone mode
-        show = getattr(exc, "show", None)
-        if callable(show):
-            show()
-        else:
-            typer.echo(f"Error: {exc}", err=True)
-        sys.exit(getattr(exc, "exit_code", USAGE_ERROR))
 
 
 @app.callback()

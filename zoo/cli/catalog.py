@@ -1,7 +1,7 @@
 """Commands of zoo: ``build``, ``find``, ``stats``, ``migrate`` and ``show ID`` (``show_entry``).
 
-A thin layer over ``zoo.catalog``: it parses options, shows a progress bar on standard error and
-formats answers. Every answer says up to which area the catalog is complete: on standard output
+A thin layer over ``zoo.catalog.service``: it parses options, shows a progress bar on standard error
+and formats answers. Every answer says up to which area the catalog is complete: on standard output
 under a table, on standard error for the machine formats (csv, json, jsonl, ``--count``), so that
 standard output stays parseable.
 """
@@ -19,7 +19,7 @@ from typing import TYPE_CHECKING, Annotated, Any
 import typer
 
 from zoo.cli.app import app, fail
-from zoo.cli.common import (
+from zoo.cli.options import (
     FLAG,
     CatalogOption,
     ReadOnlyCatalogOption,
@@ -34,8 +34,8 @@ from zoo.errors import ParameterError, ZooError
 if TYPE_CHECKING:
     from rich.progress import Progress, TaskID
 
-    from zoo.build import BuildReport
-    from zoo.catalog import AreaStats, Catalog, ClassEntry, FindResult
+    from zoo.catalog.build import BuildReport
+    from zoo.catalog.service import AreaStats, Catalog, ClassEntry, FindResult
 
 
 class FindFormat(StrEnum):
@@ -76,7 +76,7 @@ def _console(stderr: bool = False) -> Any:
 
 
 class ProgressBar:
-    """A ``zoo.catalog.BuildProgress`` drawn with rich.progress on standard error.
+    """A ``zoo.catalog.service.BuildProgress`` drawn with rich.progress on standard error.
 
     The bar advances by estimated work, not by parameter sets: the nauty work of an area grows
     with the number of its parameter sets times the size of its nets (the area), so weighting
@@ -102,7 +102,7 @@ class ProgressBar:
             TimeRemainingColumn,
         )
 
-        from zoo.enumeration import parameter_set_count
+        from zoo.catalog.enumeration import parameter_set_count
 
         if not areas:
             return
@@ -164,7 +164,7 @@ def _build_summary(report: BuildReport) -> str:
 
 def _run_build(build: Any) -> BuildReport:
     """Run a build with a progress bar; report disagreements and interruptions clearly."""
-    from zoo.classify import ClassificationDisagreement
+    from zoo.catalog.classify import ClassificationDisagreement
 
     bar = ProgressBar()
     try:
@@ -177,8 +177,7 @@ def _run_build(build: Any) -> BuildReport:
     except KeyboardInterrupt:
         bar.stop()
         typer.echo(
-            "Every area stored so far is complete and kept; run the same command again to "
-            "resume.",
+            "Every area stored so far is complete and kept; run the same command again to resume.",
             err=True,
         )
         raise  # the entry point prints "Interrupted." and exits with status 130
@@ -211,8 +210,8 @@ def build(
 
     Example: zoo build --max-area 60 --jobs 2
     """
-    from zoo.build import default_jobs
-    from zoo.catalog import Catalog
+    from zoo.catalog.build import default_jobs
+    from zoo.catalog.service import Catalog
 
     try:
         catalog = Catalog.open(db, create=True)
@@ -261,13 +260,11 @@ def find(
     ] = FindFormat.table,
     count: Annotated[
         bool,
-        typer.Option("--count", metavar=FLAG, help="Print only the number of matching classes.")
+        typer.Option("--count", metavar=FLAG, help="Print only the number of matching classes."),
     ] = False,
     seed: Annotated[
         str | None,
-        typer.Option(
-            "--seed", help="Keep only classes with a seed whose name contains this text."
-        ),
+        typer.Option("--seed", help="Keep only classes with a seed whose name contains this text."),
     ] = None,
     db: CatalogOption = None,
     jobs: JobsOption = None,
@@ -277,13 +274,13 @@ def find(
     When no catalog exists yet, the default one (area up to 100) is built first, once.
     Example: zoo find "processes = 3 and area < 100" --sort -states --limit 10
     """
-    from zoo import catalog as catalog_service
-    from zoo.build import ensure_catalog
+    from zoo.catalog import service as catalog_service
+    from zoo.catalog.build import ensure_catalog
     from zoo.storage.database import catalog_exists, display_location, resolve_location
 
     try:
         # A mistyped query must fail at once, not after building the default catalog.
-        from zoo.query import parse_query, parse_sort_key
+        from zoo.query.parser import parse_query, parse_sort_key
 
         if query.strip():
             parse_query(query)
@@ -325,7 +322,7 @@ def find(
 def _requested_columns(columns: Sequence[str] | None) -> list[str]:
     if not columns:
         return list(DEFAULT_COLUMNS)
-    from zoo.query import parse_field_names
+    from zoo.query.parser import parse_field_names
 
     names: list[str] = []
     for text in columns:
@@ -443,9 +440,9 @@ def show_entry(ref: str, fmt: str, db: str | None) -> None:
     classes on it, the seeds, and a citation line. ``fmt`` is ``table`` or ``json``. Never
     builds a catalog; raises ZooError (the caller prints it) when the entry is not there.
     """
-    from zoo.catalog import Catalog
-    from zoo.cite import cite
-    from zoo.identifiers import read_identifier
+    from zoo.catalog.identifiers import read_identifier
+    from zoo.catalog.service import Catalog
+    from zoo.publish.cite import cite
 
     identifier = read_identifier(ref)
     with Catalog.open(db) as catalog:
@@ -517,7 +514,14 @@ def _print_entry_table(report: dict[str, Any]) -> None:
     console.print(f"[bold]Members[/bold] ({len(report['members'])}): {members}")
     readings = Table(show_header=True, header_style="bold", box=None, pad_edge=False)
     for heading in (
-        "reading", "processes", "regular", "slowness", "forward", "backward", "NF_bd", "NF_ag",
+        "reading",
+        "processes",
+        "regular",
+        "slowness",
+        "forward",
+        "backward",
+        "NF_bd",
+        "NF_ag",
         "members",
     ):
         readings.add_column(heading)
@@ -581,7 +585,7 @@ def stats(
 
     Example: zoo stats --plot counts.svg
     """
-    from zoo.catalog import Catalog
+    from zoo.catalog.service import Catalog
 
     try:
         if plot is not None and plot.suffix.lower() not in (".png", ".svg"):
@@ -608,7 +612,10 @@ def stats(
             table.add_column(heading, justify="right")
         for s in rows:
             table.add_row(
-                str(s.area), f"{s.parameter_sets:,}", f"{s.readings:,}", f"{s.classes:,}",
+                str(s.area),
+                f"{s.parameter_sets:,}",
+                f"{s.readings:,}",
+                f"{s.classes:,}",
                 f"{s.frames:,}",
             )
         table.add_row(
@@ -647,8 +654,12 @@ def draw_stats(rows: Sequence[AreaStats], path: Path) -> None:
     for name, values, marker in series:
         points = [(a, v) for a, v in zip(areas, values, strict=True) if v > 0]
         axes.plot(
-            [a for a, _ in points], [v for _, v in points], marker=marker, markersize=3,
-            linewidth=1, label=name,
+            [a for a, _ in points],
+            [v for _, v in points],
+            marker=marker,
+            markersize=3,
+            linewidth=1,
+            label=name,
         )
     axes.set_yscale("log")
     axes.set_xlabel("area A = number of transitions")

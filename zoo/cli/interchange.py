@@ -1,9 +1,9 @@
 """Commands of zoo: ``export`` (a cycloid's net as PNML, DOT, SVG, JSON or net text) and
 ``identify`` (is a net in a file a cycloid system, and which one).
 
-A thin layer: the documents come from ``zoo.formats``, pictures from ``zoo.draw`` and the
-answers from ``zoo.identify``; this module parses arguments, resolves references through the
-catalog service and writes files.
+A thin layer: the documents come from ``zoo.interchange.netfile``, pictures from
+``zoo.pictures.views`` and the answers from ``zoo.interchange.identify``; this module parses
+arguments, resolves references through the catalog service and writes files.
 """
 
 from __future__ import annotations
@@ -17,7 +17,7 @@ from typing import Annotated
 import typer
 
 from zoo.cli.app import USER_ERROR, app, fail, print_error
-from zoo.cli.common import (
+from zoo.cli.options import (
     FLAG,
     LOOSE_ARGUMENTS,
     ReadOnlyCatalogOption,
@@ -26,8 +26,8 @@ from zoo.cli.common import (
     resolve_params,
     write_file_atomically,
 )
+from zoo.core.params import ParameterSet
 from zoo.errors import FormatError, ZooError
-from zoo.params import ParameterSet
 
 
 class ExportFormat(StrEnum):
@@ -63,26 +63,28 @@ def export_document(p: ParameterSet, fmt: ExportFormat) -> str:
     """The net of C(p) as text in the chosen format."""
     if fmt is ExportFormat.svg:
         try:
-            from zoo.draw import draw_net_svg
-        except ImportError:  # pragma: no cover - zoo.draw ships with zoo
-            raise FormatError("SVG export needs zoo.draw, which is not installed") from None
+            from zoo.pictures.views import draw_net_svg
+        except ImportError:  # pragma: no cover - zoo.pictures.views ships with zoo
+            raise FormatError(
+                "SVG export needs zoo.pictures.views, which is not installed"
+            ) from None
         return draw_net_svg(p)
-    from zoo.net import build_net
+    from zoo.core.net import build_net
 
     net = build_net(p)
     if fmt is ExportFormat.pnml:
-        from zoo.formats.pnml import pnml_document
+        from zoo.interchange.pnml import pnml_document
 
         return pnml_document(net)
     if fmt is ExportFormat.dot:
-        from zoo.formats.dot import dot_document
+        from zoo.interchange.dot import dot_document
 
         return dot_document(net)
     if fmt is ExportFormat.json:
-        from zoo.formats.jsonnet import json_document
+        from zoo.interchange.netjson import json_document
 
         return json_document(net)
-    from zoo.formats.nettext import net_text
+    from zoo.interchange.nettext import net_text
 
     return net_text(net)
 
@@ -107,15 +109,17 @@ def export(
     fmt: Annotated[
         ExportFormat | None,
         typer.Option(
-            "--format", "-f",
+            "--format",
+            "-f",
             help="pnml (ISO/IEC 15909-2 PT net), dot (Graphviz text), svg (picture), json, or "
             "text (zoo's marked-graph text). Default: from the --output suffix, else pnml.",
         ),
     ] = None,
     output: Annotated[
         Path | None,
-        typer.Option("--output", "-o", help="File to write (default: standard output).",
-                     dir_okay=False),
+        typer.Option(
+            "--output", "-o", help="File to write (default: standard output).", dir_okay=False
+        ),
     ] = None,
     db: ReadOnlyCatalogOption = None,
 ) -> None:
@@ -136,8 +140,9 @@ def export(
         write_file_atomically(output, document.encode("utf-8"))
     except ZooError as exc:
         raise fail(exc) from None
-    typer.echo(f"Wrote {output} (net of {p}, {chosen.value}, {len(document):,} characters)",
-               err=True)
+    typer.echo(
+        f"Wrote {output} (net of {p}, {chosen.value}, {len(document):,} characters)", err=True
+    )
 
 
 @app.command("identify")
@@ -152,18 +157,22 @@ def identify(
     ],
     fmt: Annotated[
         AnswerFormat,
-        typer.Option("--format", "-f",
-                     help="text: one line per file; json: one JSON object per line."),
+        typer.Option(
+            "--format", "-f", help="text: one line per file; json: one JSON object per line."
+        ),
     ] = AnswerFormat.text,
     mapping: Annotated[
         bool,
-        typer.Option("--mapping", "-m", metavar=FLAG,
-                     help="Text format: also list which element is which coordinate."),
+        typer.Option(
+            "--mapping",
+            "-m",
+            metavar=FLAG,
+            help="Text format: also list which element is which coordinate.",
+        ),
     ] = False,
     db: ReadOnlyCatalogOption = None,
     no_catalog: Annotated[
-        bool,
-        typer.Option("--no-catalog", metavar=FLAG, help="Do not look up class identifiers.")
+        bool, typer.Option("--no-catalog", metavar=FLAG, help="Do not look up class identifiers.")
     ] = False,
 ) -> None:
     """Decide whether the net in each file is a cycloid system, and which one.
@@ -176,7 +185,7 @@ def identify(
 
     Example: zoo identify ring.pnml --format json
     """
-    from zoo.identify import identify_file
+    from zoo.interchange.identify import identify_file
 
     unreadable = 0
     for path in files:
@@ -186,8 +195,11 @@ def identify(
             # One unreadable file must not stop the others: report it now, fail at the end.
             unreadable += 1
             if fmt is AnswerFormat.json:
-                typer.echo(json.dumps({"file": str(path), "cycloid": None, "error": str(exc)},
-                                      ensure_ascii=False))
+                typer.echo(
+                    json.dumps(
+                        {"file": str(path), "cycloid": None, "error": str(exc)}, ensure_ascii=False
+                    )
+                )
             print_error(exc)
             continue
         if fmt is AnswerFormat.json:

@@ -5,10 +5,10 @@ whole answer of ``zoo show``. For the common case, a local SQLite catalog file w
 the one this zoo expects, the identifier is one indexed query away: this module asks it with
 the standard library's ``sqlite3``, read only. Whenever it cannot be sure (a database URL, an
 older or newer schema, a locked or damaged file), it answers ``UNANSWERED`` and the caller takes
-the full path (``zoo.catalog.lookup_class_id``), which gives the proper error or note.
+the full path (``zoo.catalog.service.lookup_class_id``), which gives the proper error or note.
 
-The query is the one of ``zoo.catalog.stored_class_id`` on the schema of docs/architecture.md
-(``parameter_sets``); tests/test_cli_core.py checks that both paths agree.
+The query is the one of ``zoo.catalog.service.stored_class_id`` on the schema of
+docs/architecture.md (``parameter_sets``); tests/cli/test_examine.py checks that both paths agree.
 """
 
 from __future__ import annotations
@@ -20,7 +20,7 @@ from importlib.resources import files
 from pathlib import Path
 from typing import Final
 
-from zoo.params import ParameterSet
+from zoo.core.params import ParameterSet
 
 
 class _Unanswered:

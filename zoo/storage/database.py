@@ -370,7 +370,7 @@ def require_current(engine: Engine) -> None:
 
 
 def _newer_message(shown: str, current: str, head: str) -> str:
-    from zoo import __version__
+    from zoo.version import __version__
 
     return (
         f"catalog {shown} has schema revision {current}, which zoo {__version__} does not know "

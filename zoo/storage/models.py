@@ -1,8 +1,8 @@
 """SQLAlchemy 2 typed models of the catalog tables (docs/architecture.md, "Schema").
 
 The tables are created and changed only by the Alembic revisions in ``migrations/``; these
-classes describe the schema at the newest revision, and ``tests/test_migrations.py`` checks that
-the two agree. ORM records are storage types only: the catalog service converts them to its
+classes describe the schema at the newest revision, and ``tests/storage/test_migrations.py`` checks
+that the two agree. ORM records are storage types only: the catalog service converts them to its
 frozen value types in one place.
 
 Exact integers that can pass 64 bits (reachable states, state arcs, automorphism orders) are
@@ -249,9 +249,7 @@ class ParameterSetRecord(Base):
     class_record: Mapped[ClassRecord] = relationship()
 
     __table_args__ = (
-        CheckConstraint(
-            "alpha >= 1 AND beta >= 1 AND gamma >= 1 AND delta >= 1", name="positive"
-        ),
+        CheckConstraint("alpha >= 1 AND beta >= 1 AND gamma >= 1 AND delta >= 1", name="positive"),
     )
 
 

@@ -1,4 +1,4 @@
-"""Compile query syntax trees (``zoo/query.py``) to SQLAlchemy statements over the catalog.
+"""Compile query syntax trees (``zoo/query/parser.py``) to SQLAlchemy statements over the catalog.
 
 Semantics (docs/query-language.md, "What a query matches"): the whole boolean expression is
 evaluated for each member parameter set joined with its reading and its class, and a class
@@ -58,8 +58,8 @@ from sqlalchemy import (
     true,
 )
 
-from zoo.fields import Field, FieldType, Level, require_field
-from zoo.query import (
+from zoo.query.fields import Field, FieldType, Level, require_field
+from zoo.query.parser import (
     And,
     BoolField,
     Comparison,

@@ -1,0 +1,636 @@
+"""Identification of foreign nets: is this net a cycloid system, which one, and how do they match?
+
+A net read from a file (``zoo.interchange.netfile``) is put through the definition of a cycloid
+system step by step (docs/identify.md), so that a net which is not one gets the first rule it breaks
+as its answer:
+
+1. every arc has weight 1 (theory.md §1: the Petri space is an ordinary net);
+2. it is a marked graph: every place has exactly one input and one output transition (§1);
+3. every transition has two input and two output places (§1);
+4. no place holds more than one token initially, the net is strongly connected, and every
+   cycle carries a token (live) (§3.2);
+5. synthesis by the robust method of theory.md §6: A = |T|, the token counts (alpha + beta
+   tokens, min(alpha, beta) transitions enabled, theory.md §3.1) and the minimal cycle length
+   give the candidate parameter sets (``zoo.core.synthesis.synthesize``); a candidate is accepted
+   only when its canonical form equals the net's (``zoo.core.canonical``);
+6. when no candidate is accepted, the reason is the first of: a place can come to hold two
+   tokens (not 1-safe), more tokens than transitions, transitions that are not all alike, no
+   cycloid with these observables, not isomorphic to the ones that have them.
+
+Identification goes by canonical form, so names and the order of elements in the file never
+change the answer. The accepted class is reported by its label (its smallest member), its
+catalog identifier when a catalog holds it (looked up, never built), and an explicit
+isomorphism from the foreign net onto the label's net with the coordinate names of
+docs/architecture.md.
+"""
+
+from __future__ import annotations
+
+import os
+from collections import Counter, deque
+from collections.abc import Sequence
+from dataclasses import dataclass, field
+from pathlib import Path
+
+from zoo.core.net import MarkedGraph
+from zoo.core.params import ParameterSet
+from zoo.errors import CatalogError
+from zoo.interchange.netfile import read_net_file
+from zoo.interchange.netmodel import PLACE, PlaceTransitionNet
+
+#: Largest net for which the quadratic diagnostics run (safeness by token distances, the
+#: shortest cycle through every transition). They only sharpen the reason a net is *not* a
+#: cycloid; a larger net still gets a correct answer, with a less specific reason.
+DIAGNOSTIC_LIMIT = 2_000
+
+_SHOWN_CYCLE = 8
+
+
+@dataclass(frozen=True)
+class Observables:
+    """The net-level numbers synthesis starts from (theory.md §6)."""
+
+    transitions: int
+    places: int
+    tokens: int
+    enabled: int
+    loop: int | None  # length of a shortest cycle (through the first transition)
+
+    def as_dict(self) -> dict[str, int | None]:
+        return {
+            "transitions": self.transitions,
+            "places": self.places,
+            "tokens": self.tokens,
+            "enabled": self.enabled,
+            "loop": self.loop,
+        }
+
+
+@dataclass(frozen=True)
+class Identification:
+    """The answer for one net: a cycloid system (with class and mapping) or the reason it is not.
+
+    ``params`` is the class label (smallest member parameter set); ``synthesized`` are the
+    candidates of the robust synthesis; ``transition_map`` and ``place_map`` pair each foreign
+    element name with the coordinate name in ``build_net(params)``.
+    """
+
+    source: str
+    cycloid: bool
+    reason: str | None = None
+    params: ParameterSet | None = None
+    class_id: str | None = None
+    catalog: str = "catalog not consulted"
+    synthesized: tuple[ParameterSet, ...] = ()
+    observables: Observables | None = None
+    transition_map: tuple[tuple[str, str], ...] = field(default=())
+    place_map: tuple[tuple[str, str], ...] = field(default=())
+
+    def as_dict(self) -> dict[str, object]:
+        """JSON-ready form (docs/identify.md lists the keys)."""
+        p = self.params
+        return {
+            "file": self.source,
+            "cycloid": self.cycloid,
+            "params": None
+            if p is None
+            else {"alpha": p.alpha, "beta": p.beta, "gamma": p.gamma, "delta": p.delta},
+            "label": None if p is None else str(p),
+            "id": self.class_id,
+            "catalog": self.catalog,
+            "reason": self.reason,
+            "synthesized": [str(q) for q in self.synthesized],
+            "observables": None if self.observables is None else self.observables.as_dict(),
+            "mapping": None
+            if not self.cycloid
+            else {
+                "transitions": dict(self.transition_map),
+                "places": dict(self.place_map),
+            },
+        }
+
+    def summary(self) -> str:
+        """One line: ``FILE: cycloid system C(...), class ID`` or ``FILE: not a cycloid ...``."""
+        if not self.cycloid or self.params is None:
+            return f"{self.source}: not a cycloid system: {self.reason}"
+        p = self.params
+        where = f"= {self.class_id}" if self.class_id else f"({self.catalog})"
+        return (
+            f"{self.source}: cycloid system {p} {where}: area {p.area}, "
+            f"{p.beta} forward + {p.alpha} backward tokens"
+        )
+
+
+class _NotCycloid(Exception):
+    """Internal: carries the one-line reason a net is not a cycloid system."""
+
+    def __init__(
+        self,
+        reason: str,
+        synthesized: tuple[ParameterSet, ...] = (),
+        observables: Observables | None = None,
+    ) -> None:
+        super().__init__(reason)
+        self.reason = reason
+        # Filled once the net has passed the structural checks (docs/identify.md), so that
+        # the JSON answer shows the numbers its reason quotes.
+        self.synthesized = synthesized
+        self.observables = observables
+
+
+# --- structural checks ---------------------------------------------------------------------
+
+
+def _names(names: Sequence[str], limit: int = 3) -> str:
+    shown = ", ".join(repr(n) for n in names[:limit])
+    return shown + (", ..." if len(names) > limit else "")
+
+
+def marked_graph_of(net: PlaceTransitionNet) -> MarkedGraph:
+    """The net as a ``MarkedGraph``, or ``_NotCycloid`` naming the first rule 1-3 it breaks."""
+    if not net.transitions:
+        raise _NotCycloid("the net has no transitions (a cycloid has at least 2)")
+    heavy = [arc for arc in net.arcs if arc.weight != 1]
+    if heavy:
+        arc = heavy[0]
+        raise _NotCycloid(
+            f"arc weights must all be 1, but {arc.where} ({arc.source} -> {arc.target}) has "
+            f"weight {arc.weight}" + (f" ({len(heavy)} such arcs)" if len(heavy) > 1 else "")
+        )
+    pairs = Counter((arc.source, arc.target) for arc in net.arcs)
+    doubled = [pair for pair, count in pairs.items() if count > 1]
+    if doubled:
+        source, target = doubled[0]
+        raise _NotCycloid(
+            f"arc weights must all be 1, but {source} -> {target} is drawn "
+            f"{pairs[doubled[0]]} times, which makes an arc of weight {pairs[doubled[0]]}"
+        )
+    kind_of = {name: PLACE for name in net.places}
+    inputs: dict[str, list[str]] = {name: [] for name in net.places}
+    outputs: dict[str, list[str]] = {name: [] for name in net.places}
+    for arc in net.arcs:
+        if kind_of.get(arc.target) == PLACE:
+            inputs[arc.target].append(arc.source)
+        else:
+            outputs[arc.source].append(arc.target)
+    for name in net.places:
+        ins, outs = inputs[name], outputs[name]
+        if len(ins) != 1 or len(outs) != 1:
+            raise _NotCycloid(
+                f"not a marked graph: place {name!r} has {_count(len(ins), 'input')}"
+                f"{' (' + _names(ins) + ')' if ins else ''} and {_count(len(outs), 'output')}"
+                f"{' (' + _names(outs) + ')' if outs else ''}; every place of a marked graph "
+                "has exactly one input and one output transition"
+            )
+    index = {name: i for i, name in enumerate(net.transitions)}
+    pre = tuple(index[inputs[name][0]] for name in net.places)
+    post = tuple(index[outputs[name][0]] for name in net.places)
+    in_degree = Counter(post)
+    out_degree = Counter(pre)
+    for i, name in enumerate(net.transitions):
+        if in_degree[i] != 2 or out_degree[i] != 2:
+            raise _NotCycloid(
+                f"transition {name!r} has {in_degree[i]} input and {out_degree[i]} output "
+                "places; every transition of a cycloid has exactly 2 of each"
+            )
+    return MarkedGraph(net.transitions, net.places, pre, post, net.tokens)
+
+
+def _count(n: int, what: str) -> str:
+    if n == 0:
+        return f"no {what} transition"
+    return f"{n} {what} transition{'s' if n != 1 else ''}"
+
+
+def _successors(graph: MarkedGraph) -> list[list[tuple[int, int]]]:
+    """For every transition, its (place, next transition) pairs."""
+    found: list[list[tuple[int, int]]] = [[] for _ in graph.transitions]
+    for j, (u, v) in enumerate(zip(graph.pre, graph.post, strict=True)):
+        found[u].append((j, v))
+    return found
+
+
+def _reachable(adjacency: Sequence[Sequence[int]], start: int) -> list[bool]:
+    seen = [False] * len(adjacency)
+    seen[start] = True
+    stack = [start]
+    while stack:
+        u = stack.pop()
+        for v in adjacency[u]:
+            if not seen[v]:
+                seen[v] = True
+                stack.append(v)
+    return seen
+
+
+def check_connected(graph: MarkedGraph) -> None:
+    """``_NotCycloid`` unless every transition can reach every other one (theory.md §3.2)."""
+    forward = [[v for _, v in out] for out in _successors(graph)]
+    backward: list[list[int]] = [[] for _ in graph.transitions]
+    for u, vs in enumerate(forward):
+        for v in vs:
+            backward[v].append(u)
+    first = graph.transitions[0]
+    for adjacency, direction in ((forward, "from"), (backward, "to")):
+        seen = _reachable(adjacency, 0)
+        if not all(seen):
+            other = graph.transitions[seen.index(False)]
+            path = f"{first!r} to {other!r}" if direction == "from" else f"{other!r} to {first!r}"
+            raise _NotCycloid(
+                f"not strongly connected: there is no path from {path}; a cycloid's "
+                "transitions all lie on one strongly connected net"
+            )
+
+
+def check_live(graph: MarkedGraph) -> None:
+    """``_NotCycloid`` with a token-free cycle, if there is one (a marked graph is live iff none).
+
+    Commoner, Holt, Even, Pnueli, "Marked directed graphs", J. Comput. Syst. Sci. 5 (1971):
+    a marked graph is live iff every cycle carries a token. Found by an iterative depth-first
+    search on the token-free places only.
+    """
+    empty: list[list[tuple[int, int]]] = [[] for _ in graph.transitions]
+    for j, (u, v) in enumerate(zip(graph.pre, graph.post, strict=True)):
+        if graph.tokens[j] == 0:
+            empty[u].append((j, v))
+    state = [0] * graph.transition_count  # 0 new, 1 on the stack, 2 done
+    for root in range(graph.transition_count):
+        if state[root]:
+            continue
+        path: list[tuple[int, int]] = []  # (transition, place by which it was entered)
+        iterators = [iter(empty[root])]
+        state[root] = 1
+        path.append((root, -1))
+        while iterators:
+            step = next(iterators[-1], None)
+            if step is None:
+                iterators.pop()
+                done, _ = path.pop()
+                state[done] = 2
+                continue
+            place, v = step
+            if state[v] == 1:
+                start = next(k for k, (t, _) in enumerate(path) if t == v)
+                cycle = [*path[start + 1 :], (v, place)]
+                raise _NotCycloid(
+                    f"not live: the cycle {_cycle_text(graph, v, cycle)} carries no token, "
+                    "so its transitions can never fire"
+                )
+            if state[v] == 0:
+                state[v] = 1
+                path.append((v, place))
+                iterators.append(iter(empty[v]))
+
+
+def _cycle_text(graph: MarkedGraph, start: int, steps: Sequence[tuple[int, int]]) -> str:
+    nodes = [graph.transitions[start]]
+    for t, place in steps:
+        nodes.append(graph.places[place])
+        nodes.append(graph.transitions[t])
+    if len(nodes) > 2 * _SHOWN_CYCLE + 1:
+        return " -> ".join(nodes[: 2 * _SHOWN_CYCLE]) + f" -> ... ({len(steps)} places)"
+    return " -> ".join(nodes)
+
+
+def place_bound(
+    graph: MarkedGraph, place: int, successors: Sequence[Sequence[tuple[int, int]]] | None = None
+) -> int:
+    """The most tokens ``place`` can ever hold, for a live strongly connected marked graph.
+
+    It equals the fewest tokens on a cycle through the place (Commoner et al. 1971, Thm 3 /
+    Genrich and Lautenbach 1973): its own tokens plus the least number of tokens on a path
+    from its output back to its input transition, found by a 0-1 breadth-first search.
+    """
+    successors = successors if successors is not None else _successors(graph)
+    source, target = graph.post[place], graph.pre[place]
+    infinity = graph.token_count + 1
+    distance = [infinity] * graph.transition_count
+    distance[source] = 0
+    queue: deque[int] = deque([source])
+    while queue:
+        u = queue.popleft()
+        for j, v in successors[u]:
+            d = distance[u] + graph.tokens[j]
+            if d < distance[v]:
+                distance[v] = d
+                if graph.tokens[j]:
+                    queue.append(v)
+                else:
+                    queue.appendleft(v)
+    return graph.tokens[place] + distance[target]
+
+
+def check_initial_tokens(graph: MarkedGraph) -> None:
+    """``_NotCycloid`` if a place holds more than one token initially (theory.md §3.2)."""
+    for j, tokens in enumerate(graph.tokens):
+        if tokens > 1:
+            raise _NotCycloid(
+                f"not safe: place {graph.places[j]!r} holds {tokens} tokens initially; "
+                "a cycloid system never has more than one token on a place"
+            )
+
+
+def check_safe(graph: MarkedGraph) -> None:
+    """``_NotCycloid`` if some place can come to hold two tokens (theory.md §3.2: 1-safe).
+
+    Quadratic in the size of the net, so skipped above ``DIAGNOSTIC_LIMIT`` transitions.
+    """
+    if graph.transition_count > DIAGNOSTIC_LIMIT:
+        return
+    successors = _successors(graph)
+    for j in range(graph.place_count):
+        bound = place_bound(graph, j, successors)
+        if bound > 1:
+            raise _NotCycloid(
+                f"not safe: place {graph.places[j]!r} can come to hold {bound} tokens (every "
+                f"cycle through it carries at least {bound}); a cycloid system is 1-safe"
+            )
+
+
+def shortest_cycle_through(
+    graph: MarkedGraph,
+    transition: int,
+    bound: int | None = None,
+    successors: Sequence[Sequence[tuple[int, int]]] | None = None,
+) -> int:
+    """Length (in transitions) of a shortest cycle through a transition, by breadth-first search.
+
+    With ``bound``, the search stops after that depth and returns ``bound + 1`` if it found no
+    cycle; 0 means the transition lies on no cycle.
+    """
+    successors = successors if successors is not None else _successors(graph)
+    depth = {transition: 0}
+    frontier = [transition]
+    level = 0
+    while frontier:
+        level += 1
+        if bound is not None and level > bound:
+            return bound + 1
+        following: list[int] = []
+        for u in frontier:
+            for _, v in successors[u]:
+                if v == transition:
+                    return level
+                if v not in depth:
+                    depth[v] = level
+                    following.append(v)
+        frontier = following
+    return 0
+
+
+def closed_walk_counts(graph: MarkedGraph, start: int, max_length: int) -> tuple[int, ...]:
+    """How many closed walks of each length 1..max_length start and end at a transition.
+
+    An invariant of the unmarked net under isomorphism, the same at every transition of a
+    cycloid (its translations act transitively, theory.md §2.4); used to set candidates apart
+    cheaply. Dynamic programming over walk lengths, O(max_length * |P|).
+    """
+    successors = _successors(graph)
+    current = {start: 1}
+    counts: list[int] = []
+    for _ in range(max_length):
+        following: dict[int, int] = {}
+        for u, ways in current.items():
+            for _, v in successors[u]:
+                following[v] = following.get(v, 0) + ways
+        current = following
+        counts.append(current.get(start, 0))
+    return tuple(counts)
+
+
+def enabled_transitions(graph: MarkedGraph) -> int:
+    """Transitions whose input places are all marked (min(alpha, beta) for C(p), theory.md §3.1)."""
+    return sum(
+        1
+        for t in range(graph.transition_count)
+        if all(graph.tokens[j] for j in graph.input_places(t))
+    )
+
+
+def observables_of(graph: MarkedGraph) -> Observables:
+    """A, |P|, tokens, enabled transitions and the shortest cycle through the first transition.
+
+    Every transition of a cycloid looks the same (its translations are automorphisms,
+    theory.md §2.4), so the shortest cycle through one transition is the minimal cycle length.
+    For a net that is not a cycloid the canonical-form check rejects every candidate anyway.
+    """
+    return Observables(
+        transitions=graph.transition_count,
+        places=graph.place_count,
+        tokens=graph.token_count,
+        enabled=enabled_transitions(graph),
+        loop=shortest_cycle_through(graph, 0),
+    )
+
+
+def _uneven_transition(graph: MarkedGraph, loop: int) -> str | None:
+    """A reason naming a transition whose shortest cycle differs from the first transition's."""
+    if graph.transition_count > DIAGNOSTIC_LIMIT:
+        return None
+    successors = _successors(graph)
+    for t in range(1, graph.transition_count):
+        here = shortest_cycle_through(graph, t, bound=loop, successors=successors)
+        if here != loop:
+            shown = f"{here}" if here <= loop else f"more than {loop}"
+            return (
+                f"its transitions are not all alike: the shortest cycle through "
+                f"{graph.transitions[0]!r} has length {loop}, through {graph.transitions[t]!r} "
+                f"{shown}; in a cycloid every transition lies on a shortest cycle"
+            )
+    return None
+
+
+# --- identification ------------------------------------------------------------------------
+
+
+def _class_label(p: ParameterSet) -> ParameterSet:
+    """The smallest member of the class of p (design.md §2), found algebraically.
+
+    Members share the area and, as a multiset, the token counts {alpha, beta} (the swap keeps
+    them; the exceptional family has alpha = beta = 2), so the candidates with either order of
+    the token counts contain the whole class.
+    """
+    from zoo.core.algebra import class_key
+    from zoo.core.synthesis import candidates
+
+    key = class_key(p)
+    pool = candidates(p.area, p.alpha, p.beta) + candidates(p.area, p.beta, p.alpha)
+    return min(q for q in pool if class_key(q) == key)
+
+
+def identify_net(
+    net: PlaceTransitionNet, location: str | None = None, *, use_catalog: bool = True
+) -> Identification:
+    """Decide whether ``net`` is a cycloid system and, if it is, which one (docs/identify.md).
+
+    ``location`` names the catalog (``--db``); it is only read, never created or built. With
+    ``use_catalog=False`` the catalog is not consulted at all (``catalog`` says so).
+    """
+    try:
+        return _identify(net, location, use_catalog)
+    except _NotCycloid as refusal:
+        return Identification(
+            source=net.source,
+            cycloid=False,
+            reason=refusal.reason,
+            synthesized=refusal.synthesized,
+            observables=refusal.observables,
+        )
+
+
+def _identify(net: PlaceTransitionNet, location: str | None, use_catalog: bool) -> Identification:
+    from zoo.core.canonical import canonical_form, isomorphism_from_forms
+    from zoo.core.net import build_net
+    from zoo.core.synthesis import synthesize
+
+    graph = marked_graph_of(net)
+    check_initial_tokens(graph)
+    check_connected(graph)
+    check_live(graph)
+    seen = observables_of(graph)
+    loop = seen.loop or 0
+    # alpha + beta tokens, min(alpha, beta) enabled (theory.md §3.1); one order of the two
+    # counts suffices because the swap C(b,a,d,c) is the same class.
+    alpha, beta = seen.tokens - seen.enabled, seen.enabled
+    found = synthesize(seen.transitions, loop, alpha, beta) if beta >= 1 else []
+    form = canonical_form(graph, marked=True)
+    # One nauty call per class, not per candidate: candidates with equal algebraic class keys
+    # are isomorphic (theory.md §5.1, confirmed with nauty by every catalog build), so only
+    # their label needs comparing.
+    labels = list(dict.fromkeys(_class_label(candidate) for candidate in found))
+    if len(labels) > 1:
+        # Several classes share the observables (theory.md §6): drop those whose nets already
+        # differ in a cheap invariant before paying for their canonical forms.
+        length = loop + 4
+        profile = closed_walk_counts(graph, 0, length)
+        labels = [q for q in labels if closed_walk_counts(build_net(q), 0, length) == profile]
+    for params in labels:
+        target = build_net(params)
+        # Both forms are at hand, so the isomorphism costs no further nauty call.
+        mapping = isomorphism_from_forms(graph, form, target, canonical_form(target, marked=True))
+        if mapping is None:
+            continue
+        transition_map, place_map = mapping
+        class_id, status = (
+            catalog_status(params, location, form.fingerprint)
+            if use_catalog
+            else (None, "catalog not consulted")
+        )
+        return Identification(
+            source=net.source,
+            cycloid=True,
+            params=params,
+            class_id=class_id,
+            catalog=status,
+            synthesized=tuple(found),
+            observables=seen,
+            transition_map=tuple(
+                (graph.transitions[i], target.transitions[k]) for i, k in enumerate(transition_map)
+            ),
+            place_map=tuple((graph.places[j], target.places[k]) for j, k in enumerate(place_map)),
+        )
+    # The net passed the structural checks: the answer carries its observables and the
+    # candidates, which the reason quotes (docs/identify.md).
+    raise _NotCycloid(_refusal_reason(graph, seen, found), tuple(found), seen)
+
+
+def _refusal_reason(graph: MarkedGraph, seen: Observables, found: Sequence[ParameterSet]) -> str:
+    """The most specific reason a net that passed the structural checks matches no candidate."""
+    loop = seen.loop or 0
+    try:
+        check_safe(graph)
+    except _NotCycloid as refusal:
+        return refusal.reason
+    if seen.tokens > seen.transitions:
+        return (
+            f"wrong token count: {seen.tokens} tokens on {seen.transitions} transitions, but a "
+            "cycloid carries alpha + beta <= alpha*delta + beta*gamma = A tokens"
+        )
+    uneven = _uneven_transition(graph, loop)
+    if uneven is not None:
+        return uneven
+    observed = (
+        f"{seen.transitions} transitions, {seen.tokens} tokens, {seen.enabled} enabled "
+        f"transition{'s' if seen.enabled != 1 else ''}, shortest cycle length {loop}"
+    )
+    if not found:
+        return f"no cycloid system has its observables ({observed})"
+    shown = ", ".join(str(p) for p in found[:4]) + (", ..." if len(found) > 4 else "")
+    only = "the only cycloid system" if len(found) == 1 else "the cycloid systems"
+    return f"not isomorphic to {shown}, {only} with its observables ({observed})"
+
+
+def _missing_catalog_file(location: str | None) -> str | None:
+    """``no catalog at PATH`` when the location is a file path with no file, else None.
+
+    Checked before ``resolve_location``, which creates the parent folder of a SQLite file:
+    identification only reads, so it must not leave folders behind either.
+    """
+    from zoo.storage.database import CATALOG_ENV_VAR, default_catalog_path
+
+    value = (location or "").strip() or os.environ.get(CATALOG_ENV_VAR, "").strip()
+    if "://" in value:
+        return None
+    path = Path(value).expanduser() if value else default_catalog_path()
+    return None if path.is_file() else f"no catalog at {path.absolute()}"
+
+
+def catalog_status(
+    params: ParameterSet, location: str | None, fingerprint: str | None = None
+) -> tuple[str | None, str]:
+    """(class identifier or None, a short status) for a class label; never creates a catalog.
+
+    The status is the identifier, ``beyond the catalog bound N``, ``not in the catalog at X``,
+    ``no catalog at X`` or ``catalog unavailable (...)``. With ``fingerprint`` the entry's
+    stored fingerprint is compared with it, and a mismatch is reported in the status.
+    """
+    missing = _missing_catalog_file(location)
+    if missing is not None:
+        return None, missing
+    from zoo.storage.database import catalog_exists, display_location, resolve_location
+
+    try:
+        url = resolve_location(location)
+        shown = display_location(url)
+        if not catalog_exists(url):
+            return None, f"no catalog at {shown}"
+        from zoo.catalog.service import Catalog
+
+        catalog = Catalog.open(location)
+        try:
+            entry = catalog.class_for_params(params)
+            bound = catalog.complete_to()
+        finally:
+            catalog.close()
+    except CatalogError as exc:
+        return None, f"catalog unavailable ({exc})"
+    if entry is not None:
+        if fingerprint is not None and entry.fingerprint != fingerprint:
+            return entry.id, (
+                f"{entry.id}, but its stored fingerprint differs from this net's; the catalog "
+                "may use another canonical encoding"
+            )
+        return entry.id, entry.id
+    if params.area > bound:
+        return None, f"beyond the catalog bound {bound}"
+    return None, f"not in the catalog at {shown}"
+
+
+def identify_file(
+    path: str | os.PathLike[str], location: str | None = None, *, use_catalog: bool = True
+) -> Identification:
+    """Read a PNML or net text file and identify its net; unreadable files raise ``FormatError``."""
+    return identify_net(read_net_file(path), location, use_catalog=use_catalog)
+
+
+__all__ = [
+    "DIAGNOSTIC_LIMIT",
+    "Identification",
+    "Observables",
+    "catalog_status",
+    "identify_file",
+    "identify_net",
+    "marked_graph_of",
+    "place_bound",
+    "shortest_cycle_through",
+]

@@ -1,0 +1,1 @@
+"""Pictures of cycloids: page layout, the views, and drawing them."""

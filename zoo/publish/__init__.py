@@ -1,0 +1,1 @@
+"""Publishing the catalog: citations, dumps and checksummed releases."""
