@@ -1,0 +1,95 @@
+"""Reachability of markings by circuit token counts, checked against explicit search.
+
+The rule (Commoner, Holt, Even, Pnueli 1971; Murata 1989 §V): in a live, strongly connected
+marked graph, M' is reachable from M iff every directed circuit carries as many tokens under M'
+as under M. The reference here is the explicit reachability graph (breadth-first search) and
+networkx's shortest paths on it.
+"""
+
+from __future__ import annotations
+
+import random
+
+import networkx as nx
+import pytest
+
+from zoo.core.markings import firing_counts, firing_sequence, unequal_circuit
+from zoo.core.net import build_net
+from zoo.core.params import ParameterSet as C
+from zoo.core.reachability import reachability_graph, reachability_to_networkx
+
+SYSTEMS = [
+    C(4, 2, 2, 3),
+    C(3, 3, 1, 3),
+    C(3, 3, 2, 2),
+    C(2, 2, 1, 3),
+    C(1, 10, 1, 5),
+    C(2, 5, 1, 5),
+]
+
+
+def fire(net, marking, t):  # type: ignore[no-untyped-def]
+    after = list(marking)
+    for j in net.input_places(t):
+        after[j] -= 1
+    for j in net.output_places(t):
+        after[j] += 1
+    return after
+
+
+@pytest.mark.parametrize("p", SYSTEMS, ids=str)
+def test_shortest_firing_sequences_match_breadth_first_search(p: C) -> None:
+    net = build_net(p)
+    rg = reachability_graph(net)
+    graph = reachability_to_networkx(rg)
+    distances = nx.single_source_shortest_path_length(graph, 0)
+    for state in range(rg.state_count):
+        target = rg.marking(state)
+        sequence = firing_sequence(net, net.tokens, target)
+        assert sequence is not None and len(sequence) == distances[state]
+        marking = list(net.tokens)
+        for t in sequence:
+            assert all(marking[j] for j in net.input_places(t)), "fired a disabled transition"
+            marking = fire(net, marking, t)
+        assert tuple(marking) == target
+        assert unequal_circuit(net, net.tokens, target) is None
+
+
+@pytest.mark.parametrize("p", SYSTEMS, ids=str)
+def test_moved_tokens_are_reachable_exactly_when_explicit_search_finds_them(p: C) -> None:
+    net = build_net(p)
+    reachable = set(reachability_graph(net).iter_markings())
+    rng = random.Random(p.area)
+    start = list(net.tokens)
+    refused = 0
+    for _ in range(200):
+        marking = start[:]
+        for _ in range(rng.randint(0, 6)):  # a random walk in the reachability graph
+            enabled = [
+                t
+                for t in range(net.transition_count)
+                if all(marking[j] for j in net.input_places(t))
+            ]
+            marking = fire(net, marking, rng.choice(enabled))
+        source, target = (
+            [j for j, k in enumerate(marking) if k],
+            [j for j, k in enumerate(marking) if not k],
+        )
+        moved = marking[:]
+        moved[rng.choice(source)] -= 1  # move one token to another place
+        moved[rng.choice(target)] += 1
+        expected = tuple(moved) in reachable
+        assert (firing_counts(net, net.tokens, moved) is not None) is expected
+        circuit = unequal_circuit(net, net.tokens, moved)
+        if expected:
+            assert circuit is None
+            continue
+        refused += 1
+        assert circuit is not None
+        # a directed circuit: each place's output transition is the next place's input one
+        for here, nxt in zip(circuit, circuit[1:] + circuit[:1], strict=True):
+            assert net.post[here] == net.pre[nxt]
+        assert len({net.pre[j] for j in circuit}) == len(circuit)  # simple
+        assert sum(net.tokens[j] for j in circuit) != sum(moved[j] for j in circuit)
+        assert firing_sequence(net, net.tokens, moved) is None
+    assert refused > 50

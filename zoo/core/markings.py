@@ -1,0 +1,215 @@
+"""Reachability between markings of a marked graph, decided by token counts on circuits.
+
+For a live marked graph whose net is strongly connected, a marking M' is reachable from a
+marking M exactly when every directed circuit carries the same number of tokens under both
+(Commoner, Holt, Even and Pnueli, "Marked directed graphs", J. Computer and System Sciences
+5 (1971) 511–523; also Murata, "Petri nets: properties, analysis and applications",
+Proc. IEEE 77 (1989), §V; docs/theory/cycles-and-tokens.md). Equivalently the state equation
+M' = M + C·x has an integer solution x, the number of firings of each transition.
+
+For a strongly connected net the solutions differ by a constant vector, so the one with smallest
+entry 0 is the firing count of every shortest firing sequence (any other solution fires every
+transition more often). It can always be fired greedily: if no transition with firings left were
+enabled, following their unmarked input places backwards would close a circuit without tokens,
+which liveness rules out. ``firing_sequence`` does exactly that.
+
+When the counts differ, ``unequal_circuit`` names a directed circuit whose token count differs:
+the evidence a user can check by hand.
+"""
+
+from __future__ import annotations
+
+from collections import deque
+from collections.abc import Sequence
+
+from zoo.core.net import MarkedGraph
+from zoo.errors import FormatError
+
+
+def _check(graph: MarkedGraph, *markings: Sequence[int]) -> None:
+    for marking in markings:
+        if len(marking) != graph.place_count or any(k < 0 for k in marking):
+            raise FormatError(
+                f"a marking of {graph.describe()} needs {graph.place_count} token counts >= 0"
+            )
+
+
+def firing_counts(
+    graph: MarkedGraph, source: Sequence[int], target: Sequence[int]
+) -> tuple[int, ...] | None:
+    """The smallest x >= 0 with ``target = source + C·x`` (firings per transition), or None.
+
+    The net must be connected (every cycloid net is). Firing transition t adds a token to each
+    place whose input transition is t and takes one from each place whose output transition is
+    t, so for a place p from u to v: target(p) = source(p) + x[u] − x[v].
+
+    >>> from zoo.core.net import build_net
+    >>> from zoo.core.params import ParameterSet
+    >>> net = build_net(ParameterSet(2, 1, 1, 1))
+    >>> firing_counts(net, net.tokens, net.tokens)
+    (0, 0, 0)
+    """
+    _check(graph, source, target)
+    n = graph.transition_count
+    if n == 0:
+        return ()
+    x: list[int | None] = [None] * n
+    x[0] = 0
+    touching: list[list[int]] = [[] for _ in range(n)]
+    for place in range(graph.place_count):
+        touching[graph.pre[place]].append(place)
+        touching[graph.post[place]].append(place)
+    queue = deque([0])
+    while queue:
+        t = queue.popleft()
+        for place in touching[t]:
+            u, v = graph.pre[place], graph.post[place]
+            change = target[place] - source[place]  # = x[u] - x[v]
+            xu, xv = x[u], x[v]
+            if xu is not None and xv is None:
+                x[v] = xu - change
+                queue.append(v)
+            elif xv is not None and xu is None:
+                x[u] = xv + change
+                queue.append(u)
+    if any(value is None for value in x):
+        raise FormatError(f"{graph.describe()} is not connected; reachability needs one net")
+    known = [value for value in x if value is not None]
+    for place in range(graph.place_count):
+        u, v = graph.pre[place], graph.post[place]
+        if target[place] - source[place] != known[u] - known[v]:
+            return None
+    low = min(known)
+    return tuple(value - low for value in known)
+
+
+def firing_sequence(
+    graph: MarkedGraph, source: Sequence[int], target: Sequence[int]
+) -> list[int] | None:
+    """A shortest firing sequence (transition indices) from ``source`` to ``target``, or None
+    when ``target`` is not reachable. ``source`` must make the net live (every circuit marked).
+
+    >>> from zoo.core.net import build_net
+    >>> from zoo.core.params import ParameterSet
+    >>> net = build_net(ParameterSet(4, 2, 2, 3))
+    >>> t = net.transitions.index("t_1_0")  # enabled at M0 (docs/theory/initial-marking.md)
+    >>> after = list(net.tokens)
+    >>> for j in net.input_places(t): after[j] -= 1
+    >>> for j in net.output_places(t): after[j] += 1
+    >>> [net.transitions[k] for k in firing_sequence(net, net.tokens, after)]
+    ['t_1_0']
+    """
+    counts = firing_counts(graph, source, target)
+    if counts is None:
+        return None
+    left = list(counts)
+    marking = list(source)
+    sequence: list[int] = []
+    inputs = [graph.input_places(t) for t in range(graph.transition_count)]
+    outputs = [graph.output_places(t) for t in range(graph.transition_count)]
+    ready = deque(
+        t for t in range(graph.transition_count) if left[t] and all(marking[j] for j in inputs[t])
+    )
+    total = sum(left)
+    while ready:
+        t = ready.popleft()
+        if not left[t] or not all(marking[j] for j in inputs[t]):
+            continue
+        for j in inputs[t]:
+            marking[j] -= 1
+        for j in outputs[t]:
+            marking[j] += 1
+        left[t] -= 1
+        sequence.append(t)
+        # Only t itself and the consumers of its output places can have become enabled.
+        for u in (t, *(graph.post[j] for j in outputs[t])):
+            if left[u] and all(marking[j] for j in inputs[u]):
+                ready.append(u)
+    if len(sequence) != total:
+        raise FormatError(
+            f"{graph.describe()} is not live at the given marking: a circuit carries no token"
+        )
+    return sequence
+
+
+def _shortest_path(graph: MarkedGraph, start: int, goal: int) -> list[int]:
+    """Places of a shortest directed path from transition ``start`` to ``goal`` ([] if equal)."""
+    if start == goal:
+        return []
+    via: dict[int, int] = {start: -1}
+    queue = deque([start])
+    while queue:
+        t = queue.popleft()
+        for place in graph.output_places(t):
+            nxt = graph.post[place]
+            if nxt not in via:
+                via[nxt] = place
+                if nxt == goal:
+                    path = []
+                    while nxt != start:
+                        place = via[nxt]
+                        path.append(place)
+                        nxt = graph.pre[place]
+                    return path[::-1]
+                queue.append(nxt)
+    raise FormatError(f"{graph.describe()} is not strongly connected")
+
+
+def _circuits_of_walk(graph: MarkedGraph, walk: Sequence[int]) -> list[list[int]]:
+    """Split a closed walk (places in order) into simple directed circuits."""
+    circuits: list[list[int]] = []
+    stack: list[int] = []  # places on the current simple path
+    position: dict[int, int] = {}  # transition -> index in stack where it was left
+    if not walk:
+        return circuits
+    position[graph.pre[walk[0]]] = 0
+    for place in walk:
+        stack.append(place)
+        head = graph.post[place]
+        if head in position:
+            start = position[head]
+            circuits.append(stack[start:])
+            for removed in stack[start:]:
+                position.pop(graph.post[removed], None)
+            del stack[start:]
+            position[head] = start
+        else:
+            position[head] = len(stack)
+    return circuits
+
+
+def unequal_circuit(
+    graph: MarkedGraph, source: Sequence[int], target: Sequence[int]
+) -> list[int] | None:
+    """A directed circuit (places in order) whose token count differs between the two markings,
+    or None when every circuit carries the same count (then ``target`` is reachable).
+
+    The net must be strongly connected. Every circuit through a place p and back along a
+    shortest path is tried first; otherwise two closed walks around the place where the firing
+    counts cannot be solved differ, and one of their simple circuits is returned.
+    """
+    _check(graph, source, target)
+    difference = [t - s for s, t in zip(source, target, strict=True)]
+    for place in range(graph.place_count):
+        circuit = [place, *_shortest_path(graph, graph.post[place], graph.pre[place])]
+        if sum(difference[j] for j in circuit):
+            return circuit
+    if firing_counts(graph, source, target) is not None:
+        return None
+    root = 0
+    for place in range(graph.place_count):
+        u, v = graph.pre[place], graph.post[place]
+        back = _shortest_path(graph, v, root)
+        walks = (
+            [*_shortest_path(graph, root, u), place, *back],
+            [*_shortest_path(graph, root, v), *back],
+        )
+        if sum(difference[j] for j in walks[0]) != sum(difference[j] for j in walks[1]):
+            for walk in walks:
+                for circuit in _circuits_of_walk(graph, walk):
+                    if sum(difference[j] for j in circuit):
+                        return circuit
+    raise ArithmeticError("the firing counts have no solution but every circuit agrees")
+
+
+__all__ = ["firing_counts", "firing_sequence", "unequal_circuit"]
