@@ -93,3 +93,25 @@ def test_moved_tokens_are_reachable_exactly_when_explicit_search_finds_them(p: C
         assert sum(net.tokens[j] for j in circuit) != sum(moved[j] for j in circuit)
         assert firing_sequence(net, net.tokens, moved) is None
     assert refused > 50
+
+
+@pytest.mark.parametrize("p", SYSTEMS[:4], ids=str)
+def test_backward_search_finds_the_initial_marking_at_the_forward_distance(p: C) -> None:
+    from dataclasses import replace
+
+    from zoo.core.markings import nearest_earlier_marking
+
+    net = build_net(p)
+    rg = reachability_graph(net)
+    distances = nx.single_source_shortest_path_length(reachability_to_networkx(rg), 0)
+    for state in range(0, rg.state_count, max(1, rg.state_count // 15)):
+        moved = replace(net, tokens=rg.marking(state))
+        found = nearest_earlier_marking(moved, lambda m: m == net.tokens, 10_000)
+        assert found is not None
+        marking, sequence = found
+        assert marking == net.tokens and len(sequence) == distances[state]
+        current = list(marking)
+        for t in sequence:
+            assert all(current[j] for j in net.input_places(t))
+            current = fire(net, current, t)
+        assert tuple(current) == rg.marking(state)

@@ -20,10 +20,10 @@ the evidence a user can check by hand.
 from __future__ import annotations
 
 from collections import deque
-from collections.abc import Sequence
+from collections.abc import Callable, Sequence
 
 from zoo.core.net import MarkedGraph
-from zoo.errors import FormatError
+from zoo.errors import FormatError, LimitExceeded
 
 
 def _check(graph: MarkedGraph, *markings: Sequence[int]) -> None:
@@ -212,4 +212,55 @@ def unequal_circuit(
     raise ArithmeticError("the firing counts have no solution but every circuit agrees")
 
 
-__all__ = ["firing_counts", "firing_sequence", "unequal_circuit"]
+def nearest_earlier_marking(
+    graph: MarkedGraph,
+    accept: Callable[[tuple[int, ...]], bool],
+    limit: int,
+) -> tuple[tuple[int, ...], list[int]] | None:
+    """The marking M closest before the graph's own marking that ``accept`` takes, and a
+    shortest firing sequence from M to the graph's marking; None when no marking from which
+    the graph's marking is reachable is accepted.
+
+    Breadth-first search backwards (un-firing: a transition whose output places all hold a token
+    gives them back to its input places), so the first accepted marking is at the smallest
+    distance. ``LimitExceeded`` after ``limit`` markings. For a live, strongly connected marked
+    graph the markings found this way are exactly those reachable from the graph's marking
+    (its reachability graph is strongly connected).
+    """
+    start = tuple(graph.tokens)
+    inputs = [graph.input_places(t) for t in range(graph.transition_count)]
+    outputs = [graph.output_places(t) for t in range(graph.transition_count)]
+    previous: dict[tuple[int, ...], tuple[tuple[int, ...], int] | None] = {start: None}
+    queue = deque([start])
+    while queue:
+        marking = queue.popleft()
+        if accept(marking):
+            sequence: list[int] = []
+            here = marking
+            step = previous[here]
+            while step is not None:  # walk forwards from the accepted marking to the start
+                later, t = step
+                sequence.append(t)
+                here = later
+                step = previous[here]
+            return marking, sequence
+        for t in range(graph.transition_count):
+            if all(marking[j] for j in outputs[t]):
+                earlier = list(marking)
+                for j in outputs[t]:
+                    earlier[j] -= 1
+                for j in inputs[t]:
+                    earlier[j] += 1
+                key = tuple(earlier)
+                if key not in previous:
+                    if len(previous) >= limit:
+                        raise LimitExceeded(
+                            f"more than {limit:,} markings lead to the marking of "
+                            f"{graph.describe()}; raise the state limit"
+                        )
+                    previous[key] = (marking, t)
+                    queue.append(key)
+    return None
+
+
+__all__ = ["firing_counts", "firing_sequence", "nearest_earlier_marking", "unequal_circuit"]
