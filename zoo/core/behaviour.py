@@ -81,6 +81,22 @@ def state_graph(p: ParameterSet, limit: int = BEHAVIOUR_STATE_LIMIT) -> StateGra
     return state_graph_of(build_net(p), limit)
 
 
+def cycle_order(graph: StateGraph) -> list[int] | None:
+    """The states in firing order when the state graph is one directed cycle through all of
+    them (every system with min(α, β) = 1: one transition is enabled in every marking), else
+    None."""
+    order = [0]
+    while True:
+        targets = graph.successors[order[-1]]
+        if len(targets) != 1:
+            return None
+        if targets[0] == 0:
+            return order if len(order) == graph.state_count else None
+        if len(order) >= graph.state_count:
+            return None
+        order.append(targets[0])
+
+
 def _layers(neighbours: Sequence[Sequence[int]], start: int) -> list[int]:
     """Breadth-first distance of every state from ``start`` (-1 where unreachable)."""
     distance = [-1] * len(neighbours)
@@ -416,6 +432,16 @@ def compare_behaviour(
         graphs = [state_graph(p, limit) for p in (first, second)]
     except LimitExceeded:  # pragma: no cover - the closed formula said it fits
         return BehaviourComparison(None, f"not decided: more than {limit:,} states")
+    cycles = [cycle_order(g) for g in graphs]
+    if cycles[0] is not None and cycles[1] is not None:
+        # Two directed cycles of the same length: walk both from the initial marking.
+        mapping = [0] * graphs[0].state_count
+        for first_state, second_state in zip(cycles[0], cycles[1], strict=True):
+            mapping[first_state] = second_state
+        check_state_map(graphs[0], graphs[1], mapping)
+        return BehaviourComparison(
+            True, "both state graphs are one directed cycle of the same length", tuple(mapping)
+        )
     profiles = [behaviour_profile(g) for g in graphs]
     difference = profiles[0].first_difference(profiles[1])
     if difference is not None:
@@ -452,6 +478,7 @@ __all__ = [
     "behaviour_profile",
     "check_state_map",
     "compare_behaviour",
+    "cycle_order",
     "refined_colours",
     "state_graph",
     "state_graph_isomorphism",
