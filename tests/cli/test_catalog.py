@@ -12,6 +12,7 @@ from typer.testing import CliRunner
 
 from zoo.catalog.enumeration import cumulative_parameter_set_count
 from zoo.cli import app
+from zoo.cli.app import NOT_FOUND
 
 runner = CliRunner()
 
@@ -198,7 +199,7 @@ def test_show_class_and_frame_tables(db: str) -> None:
 
 def test_show_unknown_identifier(db: str) -> None:
     result = invoke("show", "CY8-99", "--db", db)
-    assert result.exit_code == 1
+    assert result.exit_code == NOT_FOUND
     assert result.stderr.startswith("Error: CY8-99 does not exist: area 8 has 13 classes")
 
 
@@ -307,7 +308,7 @@ def test_suggested_build_names_the_catalog_given_by_db(db: str) -> None:
     assert result.exit_code == 0
     assert f"(extend with: zoo build --max-area 29 --db {quoted})." in result.stderr
     shown = invoke("show", "CY25-1", "--db", db)
-    assert shown.exit_code == 1
+    assert shown.exit_code == NOT_FOUND
     assert shown.stderr.rstrip().endswith(f"extend it with: zoo build --max-area 25 --db {quoted}")
 
 

@@ -18,6 +18,7 @@ import typer.main
 from typer.testing import CliRunner
 
 from zoo.cli import app
+from zoo.cli.app import LIMIT_EXCEEDED, USER_ERROR
 from zoo.core import algebra
 
 runner = CliRunner()
@@ -496,7 +497,7 @@ def test_explore_state_limit_is_exact() -> None:
     # C(12,4,1,1) has exactly 1,820 reachable states (theory.md §11 [VERIFIED]).
     assert explore_json("12,4,1,1", "--state-limit", "1820")["states"] == 1820
     result = runner.invoke(app, ["explore", "12,4,1,1", "--state-limit", "1819"])
-    assert (result.exit_code, result.stdout) == (1, "")
+    assert (result.exit_code, result.stdout) == (LIMIT_EXCEEDED, "")
     assert result.stderr == (
         "Error: reachability graph of C(12,4,1,1) has more than 1,819 states; raise "
         "--state-limit or choose a smaller system (the closed formula predicts 1,820 states)\n"
@@ -511,7 +512,7 @@ def test_explore_limit_from_the_console_script() -> None:
         check=False,
     )
     # C(100,100,1,1): |RG| = C(200,100) ≈ 9.05e58 (theory.md §10)
-    assert (result.returncode, result.stdout) == (1, "")
+    assert (result.returncode, result.stdout) == (LIMIT_EXCEEDED, "")
     assert result.stderr == (
         "Error: reachability graph of C(100,100,1,1) has more than 1,000 states; raise "
         "--state-limit or choose a smaller system (the closed formula predicts about 10^58 "
@@ -575,7 +576,9 @@ def test_explore_reports_a_formula_disagreement(monkeypatch: pytest.MonkeyPatch)
 )
 def test_explore_errors(args: list[str], stderr: str) -> None:
     result = runner.invoke(app, ["explore", *args])
-    assert (result.exit_code, result.stderr, result.stdout) == (1, stderr, "")
+    # A size limit has its own exit status; every other input error is 1.
+    status = LIMIT_EXCEEDED if "limit" in stderr else USER_ERROR
+    assert (result.exit_code, result.stderr, result.stdout) == (status, stderr, "")
 
 
 def test_explore_usage_errors() -> None:
@@ -612,7 +615,7 @@ def test_ring_simulation_takes_the_state_limit() -> None:
     assert ok.exit_code == 0, ok.output
     assert json.loads(ok.stdout)["simulation"]["states"] == 10
     result = runner.invoke(app, ["ring", "-c", "2", "-g", "3", "--simulate", "--state-limit", "9"])
-    assert (result.exit_code, result.stdout) == (1, "")
+    assert (result.exit_code, result.stdout) == (LIMIT_EXCEEDED, "")
     assert result.stderr == (
         "Error: the simulated ring of 2 items and 3 slots (anonymous) has more than 9 states; "
         "simulate a smaller ring or raise the state limit\n"

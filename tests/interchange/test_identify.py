@@ -26,6 +26,7 @@ from typer.testing import CliRunner
 
 from zoo.catalog.enumeration import iter_parameter_sets
 from zoo.cli import app
+from zoo.cli.app import NOT_A_CYCLOID
 from zoo.core.algebra import class_key
 from zoo.core.net import build_net
 from zoo.core.params import ParameterSet
@@ -543,7 +544,7 @@ runner = CliRunner()
 def test_identify_prints_one_line_per_file(tmp_path: Path) -> None:
     files = [DATA / "pipeline-ring.pnml", DATA / "dead-cycle.pnml", DATA / "arc-weights.pnml"]
     result = runner.invoke(app, ["identify", *map(str, files), "--no-catalog"])
-    assert result.exit_code == 0, result.output
+    assert result.exit_code == NOT_A_CYCLOID, result.output
     lines = result.output.splitlines()
     assert lines == [
         f"{files[0]}: cycloid system C(1,2,1,1) (catalog not consulted): area 3, 2 forward + 1 "
@@ -561,7 +562,7 @@ def test_identify_json_gives_one_object_per_file(tmp_path: Path) -> None:
         app,
         ["identify", *map(str, files), "--format", "json", "--db", str(tmp_path / "none.sqlite3")],
     )
-    assert result.exit_code == 0, result.output
+    assert result.exit_code == NOT_A_CYCLOID, result.output
     first, second = (json.loads(line) for line in result.output.splitlines())
     assert first["cycloid"] is True and first["id"] is None
     assert first["params"] == {"alpha": 1, "beta": 2, "gamma": 1, "delta": 1}
@@ -674,7 +675,7 @@ def test_json_of_a_fired_cycloid_carries_the_observables_its_reason_quotes(
     fired = tmp_path / "fired.mgraph"
     fired.write_text("\n".join(lines) + "\n")
     result = runner.invoke(app, ["identify", str(fired), "--format", "json", "--no-catalog"])
-    assert result.exit_code == 0, result.output
+    assert result.exit_code == NOT_A_CYCLOID, result.output
     answer = json.loads(result.output)
     assert answer["cycloid"] is False
     assert answer["reason"].startswith("not isomorphic to C(4,2,2,3)")

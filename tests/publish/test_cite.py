@@ -17,6 +17,7 @@ from typer.testing import CliRunner
 from zoo import __version__
 from zoo.catalog.service import Catalog
 from zoo.cli import app
+from zoo.cli.app import NOT_FOUND
 from zoo.core.canonical import ENCODING_VERSION
 from zoo.errors import CatalogError, NotInCatalog
 from zoo.publish.cite import CatalogVersion, Citation, bibtex_key, catalog_version, cite
@@ -116,7 +117,7 @@ def test_cli_cite_both_and_json(small_catalog: str) -> None:
 
 def test_cli_cite_unknown_entry(small_catalog: str) -> None:
     result = CliRunner().invoke(app, ["cite", "CY12-999", "--db", small_catalog])
-    assert result.exit_code == 1
+    assert result.exit_code == NOT_FOUND
     assert result.stderr.startswith("Error: ")
     assert len(result.stderr.strip().splitlines()) == 1
 

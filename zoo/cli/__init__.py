@@ -4,7 +4,9 @@ One module per command group; each registers its commands on ``zoo.cli.app.app``
 package is imported, and none builds SQL, nets or reports itself.
 """
 
+import os
 import sys
+from typing import Any
 
 import typer
 
@@ -16,22 +18,38 @@ from zoo.cli import (  # noqa: F401  (command registration)
     publish,
     rings,
 )
-from zoo.cli.app import INTERRUPTED, USAGE_ERROR, USER_ERROR, app, print_error
+from zoo.cli.app import INTERRUPTED, USAGE_ERROR, USER_ERROR, app, exit_status, print_error
 from zoo.errors import ZooError
 
 
 def main() -> None:
-    """Console entry point: run the app; a ZooError becomes ``Error: ...`` and exit status 1."""
+    """Console entry point: run the app; a ZooError becomes ``Error: ...`` and its exit status.
+
+    A reader that stops early (``zoo find | head``) closes the pipe: that ends the command
+    quietly with status 0, as a pipeline expects, instead of a BrokenPipeError.
+    """
+    watch = _PipeWatch(sys.stdout)
+    sys.stdout = watch
     try:
         # Outside standalone mode an Exit raised by a command comes back as the return value.
         status = app(standalone_mode=False)
+        sys.stdout.flush()  # a closed pipe shows up here at the latest, not at interpreter exit
         if status == INTERRUPTED:  # typer turns Ctrl-C inside a command into Exit(130)
             typer.echo("Interrupted.", err=True)
         if isinstance(status, int) and status:
             sys.exit(status)
+    except BrokenPipeError:
+        _silence_stdout()
+        sys.exit(0)
+    except SystemExit:
+        # typer and rich turn a closed pipe into SystemExit(1) themselves
+        if watch.broken:
+            _silence_stdout()
+            sys.exit(0)
+        raise
     except ZooError as exc:  # a command that let one through: still one line, no traceback
         print_error(exc)
-        sys.exit(USER_ERROR)
+        sys.exit(exit_status(exc))
     except KeyboardInterrupt:
         typer.echo("Interrupted.", err=True)
         sys.exit(INTERRUPTED)
@@ -47,6 +65,38 @@ def main() -> None:
         else:
             typer.echo(f"Error: {exc}", err=True)
         sys.exit(getattr(exc, "exit_code", USAGE_ERROR))
+
+
+class _PipeWatch:
+    """Standard output that remembers whether the reader closed the pipe (then re-raises)."""
+
+    def __init__(self, stream: Any) -> None:
+        self._stream = stream
+        self.broken = False
+
+    def write(self, text: str) -> int:
+        try:
+            return int(self._stream.write(text))
+        except BrokenPipeError:
+            self.broken = True
+            raise
+
+    def flush(self) -> None:
+        try:
+            self._stream.flush()
+        except BrokenPipeError:
+            self.broken = True
+            raise
+
+    def __getattr__(self, name: str) -> Any:
+        return getattr(self._stream, name)
+
+
+def _silence_stdout() -> None:
+    """Point standard output at the null device, so that the final flush cannot fail again
+    (the recipe of Python's documentation on SIGPIPE)."""
+    devnull = os.open(os.devnull, os.O_WRONLY)
+    os.dup2(devnull, sys.__stdout__.fileno() if sys.__stdout__ else 1)
 
 
 __all__ = ["app", "main"]

@@ -4,12 +4,12 @@ from __future__ import annotations
 
 import inspect
 import re
-from typing import Any
+from typing import Annotated, Any
 
 import typer
 from typer.core import TyperGroup
 
-from zoo.errors import QuerySyntaxError, ZooError
+from zoo.errors import LimitExceeded, NotInCatalog, QuerySyntaxError, ZooError
 
 
 class PlainParameterError(typer.BadParameter):
@@ -90,6 +90,19 @@ def _hide_flag_type(option: Any) -> None:
         option.metavar = ""
 
 
+#: Metavars of arguments that take ONE reference, which may be written in several words
+#: (``4 2 2 3``): their usage line must not promise several (``PARAMS|ID...``).
+ONE_REFERENCE_METAVARS = frozenset({"PARAMS|ID", "ID"})
+
+
+def _say_one_reference(param: Any) -> None:
+    """Usage ``zoo show [OPTIONS] PARAMS|ID`` for an argument that reads one reference from
+    several words; typer would print ``{PARAMS|ID}...``, which promises several."""
+    if getattr(param, "nargs", 1) != 1 and param.metavar in ONE_REFERENCE_METAVARS:
+        metavar = param.metavar
+        param._usage_display_name = lambda: metavar
+
+
 class ZooGroup(TyperGroup):
     """The command group of zoo: typer's, with bad option values reported plainly (one place)
     and help paragraphs unwrapped."""
@@ -104,12 +117,23 @@ class ZooGroup(TyperGroup):
         command = super().get_command(ctx, cmd_name)
         if command is not None:
             _hide_flag_type(command.get_help_option(ctx))
+            if command.epilog is None:
+                command.epilog = _EPILOG
+            for param in command.params:
+                _say_one_reference(param)
         return command
 
     def get_help_option(self, ctx: Any) -> Any:
         option = super().get_help_option(ctx)
         _hide_flag_type(option)
         return option
+
+    def get_params(self, ctx: Any) -> Any:
+        params = super().get_params(ctx)
+        for param in params:  # --install-completion and --show-completion take no value
+            if getattr(param, "is_flag", False):
+                _hide_flag_type(param)
+        return params
 
     def invoke(self, ctx: Any) -> Any:
         try:
@@ -123,33 +147,71 @@ class ZooGroup(TyperGroup):
             raise PlainParameterError(plain, ctx=error.ctx, param=error.param) from None
 
 
+#: Exit status of a user error that has no status of its own (bad input, unreadable file, ...).
+USER_ERROR = 1
+#: Exit status of a command-line usage error (unknown option, missing argument), as click's.
+USAGE_ERROR = 2
+#: Exit status when an identifier, parameter set or area is not in the catalog.
+NOT_FOUND = 3
+#: Exit status of ``zoo identify`` when a net it read is not a cycloid system.
+NOT_A_CYCLOID = 4
+#: Exit status when a size limit stops a command (--state-limit, the net or canonical limit).
+LIMIT_EXCEEDED = 5
+#: Exit status after Ctrl-C (128 + SIGINT, common practice for shells).
+INTERRUPTED = 130
+
+#: Every exit status with its meaning, in the order of the ``--help`` epilog and the docs.
+EXIT_STATUSES: tuple[tuple[int, str], ...] = (
+    (0, "success"),
+    (USER_ERROR, "error in the input"),
+    (USAGE_ERROR, "usage error"),
+    (NOT_FOUND, "not found in the catalog"),
+    (NOT_A_CYCLOID, "not a cycloid (identify)"),
+    (LIMIT_EXCEEDED, "limit exceeded"),
+    (INTERRUPTED, "interrupted"),
+)
+
+_EPILOG = "Exit status: " + ", ".join(f"{code} {meaning}" for code, meaning in EXIT_STATUSES) + "."
+
+
+def exit_status(problem: str | BaseException) -> int:
+    """The exit status of an error: its own for "not found" and "limit exceeded", else 1."""
+    if isinstance(problem, NotInCatalog):
+        return NOT_FOUND
+    if isinstance(problem, LimitExceeded):
+        return LIMIT_EXCEEDED
+    return USER_ERROR
+
+
+def _show_version(value: bool) -> None:
+    if value:
+        from zoo.version import __version__
+
+        typer.echo(f"zoo {__version__}")
+        raise typer.Exit()
+
+
 app = typer.Typer(
     cls=ZooGroup,
     name="zoo",
     help="A research catalog of Petri's cycloids C(alpha, beta, gamma, delta).",
+    epilog=_EPILOG,
     no_args_is_help=True,
-    add_completion=False,
+    add_completion=True,  # --install-completion and --show-completion for bash, zsh, fish
     pretty_exceptions_enable=False,
 )
 
 
-#: Exit status of a user error (bad input, missing catalog entry, limit exceeded, ...).
-USER_ERROR = 1
-#: Exit status of a command-line usage error (unknown option, missing argument), as click's.
-USAGE_ERROR = 2
-#: Exit status after Ctrl-C (128 + SIGINT, common practice for shells).
-INTERRUPTED = 130
-
-
-def fail(problem: str | ZooError, status: int = USER_ERROR) -> typer.Exit:
+def fail(problem: str | ZooError, status: int | None = None) -> typer.Exit:
     """Print ``Error: ...`` on standard error and return the exit to raise: ``raise fail(...)``.
 
     The one way every command reports an error. A query syntax error also gets the query with
-    a caret under the offending text. The exit works both under typer's test runner and under
-    ``main`` (which runs the app outside standalone mode and exits with the returned status).
+    a caret under the offending text. The status is the error's own (``exit_status``) unless
+    given. The exit works both under typer's test runner and under ``main`` (which runs the app
+    outside standalone mode and exits with the returned status).
     """
     print_error(problem)
-    return typer.Exit(status)
+    return typer.Exit(exit_status(problem) if status is None else status)
 
 
 def print_error(problem: str | ZooError) -> None:
@@ -159,6 +221,17 @@ def print_error(problem: str | ZooError) -> None:
         typer.echo(problem.caret_text(), err=True)
 
 
-@app.callback()
-def _root() -> None:
+@app.callback(epilog=_EPILOG)
+def _root(
+    version: Annotated[
+        bool,
+        typer.Option(
+            "--version",
+            metavar="",
+            is_eager=True,
+            callback=_show_version,
+            help="Print the zoo version and exit.",
+        ),
+    ] = False,
+) -> None:
     """A research catalog of Petri's cycloids C(alpha, beta, gamma, delta)."""

@@ -58,6 +58,9 @@ JobsOption = Annotated[
     ),
 ]
 
+#: A --limit at least this large cannot cut any catalog: it means no limit.
+_NO_LIMIT = 2**62
+
 #: Columns of ``find`` when --columns is not given.
 DEFAULT_COLUMNS = ("loop", "tokens", "processes", "states", "frame")
 
@@ -311,7 +314,12 @@ def find(
                 typer.echo(str(number))
                 typer.echo(note, err=True)
                 return
-            result = catalog.find(query, sort=sort, limit=limit, seed=seed, columns=columns)
+            # Aliases collapsed, each field once (the service would see `loop,cyc` as two
+            # columns of one name); a limit beyond any catalog means no limit (SQL has 64 bits).
+            asked = _requested_columns(columns) if columns else None
+            if limit is not None and limit >= _NO_LIMIT:
+                limit = None
+            result = catalog.find(query, sort=sort, limit=limit, seed=seed, columns=asked)
         finally:
             catalog.close()
     except ZooError as exc:  # a query syntax error also gets its caret line
@@ -361,10 +369,11 @@ def _cell(result: FindResult, index: int, name: str, custom: bool) -> str:
 def _print_find(result: FindResult, fmt: FindFormat, columns: Sequence[str] | None) -> None:
     sys.set_int_max_str_digits(0)
     custom = bool(columns)
-    names = _requested_columns(columns)
+    # One column per field: the member list is always the last column, never a second one.
+    names = [n for n in _requested_columns(columns) if n != "members"]
     note = result.completeness_note()
     shown = len(result.entries)
-    summary = f"{result.total:,} classes match" + (
+    summary = ("1 class matches" if result.total == 1 else f"{result.total:,} classes match") + (
         f"; showing {shown:,}." if shown < result.total else "."
     )
     if fmt is FindFormat.table:

@@ -16,7 +16,7 @@ from typing import Annotated
 
 import typer
 
-from zoo.cli.app import USER_ERROR, app, fail, print_error
+from zoo.cli.app import NOT_A_CYCLOID, USER_ERROR, app, fail, print_error
 from zoo.cli.options import (
     FLAG,
     LOOSE_ARGUMENTS,
@@ -181,13 +181,13 @@ def identify(
     isomorphism onto the label's coordinates; any other net gets the
     first rule it breaks (docs/identify.md).
 
-    Exit status 1 when a file cannot be read.
+    Exit status 1 when a file cannot be read, else 4 when a net is not a cycloid system.
 
     Example: zoo identify ring.pnml --format json
     """
     from zoo.interchange.identify import identify_file
 
-    unreadable = 0
+    unreadable = not_cycloid = 0
     for path in files:
         try:
             answer = identify_file(path, db, use_catalog=not no_catalog)
@@ -202,6 +202,7 @@ def identify(
                 )
             print_error(exc)
             continue
+        not_cycloid += not answer.cycloid
         if fmt is AnswerFormat.json:
             typer.echo(json.dumps(answer.as_dict(), ensure_ascii=False))
             continue
@@ -213,6 +214,8 @@ def identify(
                 typer.echo(f"  place {foreign} = {ours}")
     if unreadable:
         raise typer.Exit(USER_ERROR)
+    if not_cycloid:
+        raise typer.Exit(NOT_A_CYCLOID)
 
 
 __all__ = ["ExportFormat", "export_document"]

@@ -1,0 +1,77 @@
+"""What ``zoo find`` prints: one column per field, any --limit, a grammatical summary (issue 8)."""
+
+from __future__ import annotations
+
+import csv
+import io
+import json
+
+import pytest
+from typer.testing import CliRunner
+
+from zoo.cli import app
+
+runner = CliRunner()
+
+
+@pytest.fixture(scope="module")
+def db(tmp_path_factory: pytest.TempPathFactory) -> str:
+    location = str(tmp_path_factory.mktemp("find") / "catalog.sqlite3")
+    result = runner.invoke(app, ["build", "--max-area", "16", "--db", location, "--jobs", "1"])
+    assert result.exit_code == 0, result.output
+    return location
+
+
+@pytest.mark.parametrize(
+    ("columns", "field"),
+    [("loop,loop", "loop"), ("loop,cyc", "loop"), ("α,alpha", "alpha"), ("β,beta,β", "beta")],
+)
+def test_a_field_named_twice_is_one_column(db: str, columns: str, field: str) -> None:
+    result = runner.invoke(app, ["find", "area = 16", "--db", db, "--columns", columns])
+    assert result.exit_code == 0, result.output
+    header = result.stdout.splitlines()[0].split()
+    assert header == ["id", "label", "area", field, "members"]
+    rows = list(
+        csv.reader(
+            io.StringIO(
+                runner.invoke(
+                    app, ["find", "area = 16", "--db", db, "-f", "csv", "-c", columns]
+                ).stdout
+            )
+        )
+    )
+    assert rows[0] == ["id", "label", "area", field, "members"]
+
+
+def test_members_among_the_columns_shifts_nothing(db: str) -> None:
+    # Area 16, loop 5: every class's states column must hold its own state count, which the
+    # JSON answer (whole entries) gives independently.
+    query = "area = 16 and loop = 5"
+    table = runner.invoke(
+        app, ["find", query, "--db", db, "--columns", "processes,members,states"]
+    ).stdout.splitlines()
+    header = table[0].split()
+    assert header.count("members") == 1 and header.index("states") < header.index("members")
+    entries = json.loads(runner.invoke(app, ["find", query, "--db", db, "-f", "json"]).stdout)
+    states = {e["id"]: e["states"] for e in entries}
+    column = header.index("states")
+    for line in table[1 : 1 + len(entries)]:
+        cells = line.split()
+        assert int(cells[column]) == states[cells[0]]
+
+
+def test_a_limit_beyond_any_catalog_means_all(db: str) -> None:
+    every = runner.invoke(app, ["find", "area = 16", "--db", db, "-f", "json"])
+    huge = runner.invoke(
+        app, ["find", "area = 16", "--db", db, "-f", "json", "--limit", "99999999999999999999"]
+    )
+    assert huge.exit_code == 0, huge.output
+    assert json.loads(huge.stdout) == json.loads(every.stdout)
+
+
+def test_one_class_is_singular(db: str) -> None:
+    # Area 2 has one parameter set, C(1,1,1,1) (OEIS A055507: 1 at n = 2).
+    result = runner.invoke(app, ["find", "area = 2", "--db", db])
+    assert "1 class matches." in result.stdout and "1 classes" not in result.stdout
+    many = runner.invoke(app, ["find", "area = 3", "--db", db])
+    assert "2 classes match." in many.stdout
