@@ -15,6 +15,7 @@ from zoo.cli import (  # noqa: F401  (command registration)
     pictures,
     publish,
     rings,
+    serve,
 )
 from zoo.cli.app import INTERRUPTED, USAGE_ERROR, USER_ERROR, app, print_error
 from zoo.errors import ZooError

@@ -1,0 +1,67 @@
+"""The Markdown pages of docs/, rendered safely for ``/docs/NAME``.
+
+Read once at start into memory (a request names a page, never a path). Raw HTML in the Markdown is
+shown as text, not passed through (markdown-it-py with ``html`` off), and links between pages are
+rewritten to their web addresses.
+"""
+
+from __future__ import annotations
+
+import re
+from dataclasses import dataclass
+from pathlib import Path
+
+from markdown_it import MarkdownIt
+
+#: docs/ beside the package in a source checkout (an editable install); an installed wheel has none.
+DOCS_DIR = Path(__file__).resolve().parents[2] / "docs"
+_NAME = re.compile(r"[a-z0-9][a-z0-9-]*")
+_LOCAL_LINK = re.compile(r'href="(?:\./)?((?:[a-z0-9-]+/)?[a-z0-9-]+)\.md(#[^"]*)?"')
+_IMAGE = re.compile(r'src="(?:\.\./docs/|\./)?images/([A-Za-z0-9_.-]+\.png)"')
+
+
+@dataclass(frozen=True)
+class DocPage:
+    name: str  # address under /docs/, e.g. "query-language" or "invariants/loop"
+    title: str
+    html: str
+
+
+@dataclass(frozen=True)
+class Docs:
+    pages: dict[str, DocPage]
+    images: dict[str, bytes]
+
+
+def render_markdown(text: str) -> str:
+    """HTML of Markdown text, raw HTML escaped, links to sibling .md pages made web addresses."""
+    html = MarkdownIt("commonmark", {"html": False}).enable("table").render(text)
+    html = _LOCAL_LINK.sub(lambda m: f'href="/docs/{m.group(1)}{m.group(2) or ""}"', html)
+    return _IMAGE.sub(lambda m: f'src="/docs/images/{m.group(1)}"', html)
+
+
+def _title(text: str, fallback: str) -> str:
+    for line in text.splitlines():
+        if line.startswith("# "):
+            return line[2:].strip()
+    return fallback
+
+
+def load_docs(folder: Path = DOCS_DIR) -> Docs:
+    """Every docs page (one folder level deep) and picture, read now; empty without docs/."""
+    pages: dict[str, DocPage] = {}
+    images: dict[str, bytes] = {}
+    if not folder.is_dir():
+        return Docs(pages, images)
+    for path in sorted([*folder.glob("*.md"), *folder.glob("*/*.md")]):
+        relative = path.relative_to(folder).with_suffix("").as_posix()
+        if not all(_NAME.fullmatch(part) for part in relative.split("/")):
+            continue
+        text = path.read_text(encoding="utf-8")
+        pages[relative] = DocPage(relative, _title(text, relative), render_markdown(text))
+    for image in sorted(folder.glob("images/*.png")):
+        images[image.name] = image.read_bytes()
+    return Docs(pages, images)
+
+
+__all__ = ["DOCS_DIR", "DocPage", "Docs", "load_docs", "render_markdown"]

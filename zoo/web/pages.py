@@ -1,0 +1,497 @@
+"""The HTML pages of the web catalog; every answer comes from the catalog service.
+
+Addresses (stable, for papers to link; docs/web.md):
+``/classes/CY16-3`` a class, ``/frames/FR16-2`` a frame, ``/parameter-sets/4,2,2,3`` redirects
+to the class of that parameter set, ``/search?q=...`` a query, ``/identify``, ``/rings``,
+``/docs/NAME``. Downloads hang below an entry: ``/classes/CY16-3/net.pnml`` and so on.
+"""
+
+from __future__ import annotations
+
+import re
+import sys
+from functools import lru_cache
+from typing import Any
+from urllib.parse import urlencode
+
+import anyio
+from jinja2 import Environment, PackageLoader, select_autoescape
+from markupsafe import Markup
+from starlette.datastructures import UploadFile
+from starlette.exceptions import HTTPException
+from starlette.requests import Request
+from starlette.responses import HTMLResponse, PlainTextResponse, RedirectResponse, Response
+from starlette.routing import Route
+
+from zoo.catalog.identifiers import read_identifier
+from zoo.catalog.service import Catalog
+from zoo.core.params import ParameterSet, parse_params
+from zoo.errors import LimitExceeded, NotInCatalog, ParameterError, QuerySyntaxError, ZooError
+from zoo.web import answers
+from zoo.web.catalog_access import MAX_UPLOAD_BYTES, identify_upload, parse_upload
+from zoo.web.plots import counts_svg
+
+#: Seconds an identification may take before the page gives up (common practice: answer a web
+#: request within tens of seconds; identify of a catalog-sized net takes well under one).
+IDENTIFY_SECONDS = 20.0
+#: Rows a CSV or JSON download of a search holds at most.
+MAX_DOWNLOAD_ROWS = 10_000
+#: Queries shown on the home page, each a link to its search.
+EXAMPLE_QUERIES = (
+    ("processes = 3 and area < 40", "three processes, small nets"),
+    ("regular and loop >= 6", "regular systems whose shortest cycle is long"),
+    ("tokens = 4 and area <= 12", "four tokens, areas up to 12"),
+    ("cyclic and not regular", "cyclic transition group, not regular"),
+)
+
+_ENV = Environment(
+    loader=PackageLoader("zoo.web", "templates"),
+    autoescape=select_autoescape(["html"]),
+    trim_blocks=True,
+    lstrip_blocks=True,
+)
+_ENV.filters["number"] = lambda value: f"{value:,}" if isinstance(value, int) else str(value)
+
+
+def render(request: Request | None, template: str, status: int = 200, **values: Any) -> Response:
+    """A page from a template, with the catalog's completeness bound in every footer."""
+    html = _ENV.get_template(template).render(**values)
+    return HTMLResponse(html, status_code=status)
+
+
+def render_error(message: str, status: int) -> Response:
+    titles = {400: "Cannot answer", 404: "Not in the catalog", 413: "Too large"}
+    return render(
+        None, "error.html", status, title=titles.get(status, "Error"), message=message, code=status
+    )
+
+
+def _catalog(request: Request) -> Catalog:
+    catalog: Catalog = request.app.state.catalog
+    return catalog
+
+
+def _status_of(exc: ZooError) -> int:
+    return 404 if isinstance(exc, NotInCatalog) else 400
+
+
+# --- home ------------------------------------------------------------------------------------
+
+
+def home(request: Request) -> Response:
+    catalog = _catalog(request)
+    rows = [s for s in catalog.stats() if s.complete]
+    totals = {
+        "parameter_sets": sum(r.parameter_sets for r in rows),
+        "classes": sum(r.classes for r in rows),
+        "frames": sum(r.frames for r in rows),
+    }
+    return render(
+        request,
+        "home.html",
+        complete_to=catalog.complete_to(),
+        rows=rows,
+        totals=totals,
+        plot=Markup(counts_svg(rows)),
+        examples=[(q, why, "/search?" + urlencode({"q": q})) for q, why in EXAMPLE_QUERIES],
+    )
+
+
+# --- search ----------------------------------------------------------------------------------
+
+
+def _search_from(request: Request, *, download: bool = False) -> answers.SearchPage:
+    params = request.query_params
+    largest = MAX_DOWNLOAD_ROWS if download else answers.MAX_LIMIT
+    limit = answers.read_bound(
+        params.get("limit"), "limit", largest if download else answers.DEFAULT_LIMIT, largest
+    )
+    offset = answers.read_bound(params.get("offset"), "offset", 0, answers.MAX_OFFSET)
+    return answers.search(
+        _catalog(request),
+        params.get("q", ""),
+        sort=params.get("sort") or None,
+        limit=limit,
+        offset=offset,
+        columns=params.getlist("col"),
+        max_limit=largest,
+    )
+
+
+def _address(path: str, **values: Any) -> str:
+    pairs: list[tuple[str, Any]] = []
+    for key, value in values.items():
+        if isinstance(value, list | tuple):
+            pairs.extend((key, v) for v in value)
+        elif value not in (None, ""):
+            pairs.append((key, value))
+    return path + ("?" + urlencode(pairs) if pairs else "")
+
+
+def search_page(request: Request) -> Response:
+    params = request.query_params
+    query = params.get("q", "")
+    chosen = params.getlist("col")
+    values: dict[str, Any] = {
+        "query": query,
+        "sort": params.get("sort", ""),
+        "chosen": chosen,
+        "choices": answers.COLUMN_CHOICES,
+        "page": None,
+        "error": None,
+        "caret": None,
+    }
+    try:
+        page = _search_from(request)
+    except QuerySyntaxError as exc:
+        values["error"] = str(exc)
+        values["caret"] = {"query": exc.query or query, "position": exc.position}
+        return render(request, "search.html", 400, **values)
+    except ZooError as exc:
+        values["error"] = str(exc)
+        return render(request, "search.html", 400, **values)
+    columns = [c for c in page.columns if c != "members"]
+    keep = {"q": query, "col": chosen}
+
+    def sort_link(name: str) -> str:
+        current = page.sort or ""
+        target = f"-{name}" if current == name else name
+        return _address("/search", **keep, sort=target, limit=page.limit)
+
+    def sort_mark(name: str) -> str:
+        if page.sort == name:
+            return "ascending"
+        if page.sort == f"-{name}":
+            return "descending"
+        return "none"
+
+    pages = {
+        "previous": _address(
+            "/search",
+            **keep,
+            sort=page.sort,
+            limit=page.limit,
+            offset=max(0, page.offset - page.limit),
+        )
+        if page.offset > 0
+        else None,
+        "next": _address(
+            "/search", **keep, sort=page.sort, limit=page.limit, offset=page.offset + page.limit
+        )
+        if page.offset + page.limit < page.total and page.offset + page.limit <= answers.MAX_OFFSET
+        else None,
+    }
+    values.update(
+        page=page,
+        columns=columns,
+        sortable=["area", *columns],
+        sort_link=sort_link,
+        sort_mark=sort_mark,
+        pages=pages,
+        first=page.offset + 1,
+        last=page.offset + len(page.entries),
+        note=page.result.completeness_note(),
+        csv_link=_address("/search.csv", **keep, sort=page.sort),
+        json_link=_address("/search.json", **keep, sort=page.sort),
+    )
+    return render(request, "search.html", **values)
+
+
+def _download_headers(page: answers.SearchPage, name: str) -> dict[str, str]:
+    shown = len(page.entries)
+    headers = {
+        "content-disposition": f'attachment; filename="{name}"',
+        "x-zoo-complete-to": str(page.result.complete_to),
+        "x-zoo-total": str(page.total),
+        "x-zoo-rows": str(shown),
+    }
+    return headers
+
+
+def search_csv(request: Request) -> Response:
+    page = _search_from(request, download=True)
+    return Response(
+        page.csv_text(),
+        media_type="text/csv; charset=utf-8",
+        headers=_download_headers(page, "zoo-search.csv"),
+    )
+
+
+def search_json(request: Request) -> Response:
+    from zoo.web.app import json_text
+
+    page = _search_from(request, download=True)
+    return Response(
+        json_text(page.items()),
+        media_type="application/json",
+        headers=_download_headers(page, "zoo-search.json"),
+    )
+
+
+# --- entries ---------------------------------------------------------------------------------
+
+
+@lru_cache(maxsize=256)
+def picture(label: str, view: str) -> str:
+    """The SVG of a view of C(label), without its XML prologue, for an inline picture."""
+    from zoo.pictures.views import draw
+
+    svg = draw(parse_params(label), view, "svg").decode()
+    start = svg.find("<svg")
+    return svg[start:] if start >= 0 else svg
+
+
+def _pictures(label: str) -> list[dict[str, Any]]:
+    shown = []
+    for view, caption in (
+        ("parallelogram", "Fundamental parallelogram"),
+        ("net", "The net, transitions on rings"),
+    ):
+        try:
+            shown.append({"view": view, "caption": caption, "svg": Markup(picture(label, view))})
+        except (LimitExceeded, ParameterError) as exc:
+            shown.append({"view": view, "caption": caption, "svg": None, "reason": str(exc)})
+    return shown
+
+
+def _entry_report(request: Request, ref: str) -> dict[str, Any]:
+    from zoo.publish.entry_report import entry_report
+
+    try:
+        return entry_report(_catalog(request), ref)
+    except ZooError as exc:
+        raise HTTPException(_status_of(exc), str(exc)) from None
+
+
+def class_page(request: Request) -> Response:
+    ref = request.path_params["ref"]
+    identifier = read_identifier(ref)
+    if identifier is not None and identifier.kind == "frame":
+        return RedirectResponse(f"/frames/{identifier}", status_code=301)
+    report = _entry_report(request, ref)
+    if ref != report["id"]:  # a label, member or lower-case spelling: the one stable address
+        return RedirectResponse(f"/classes/{report['id']}", status_code=301)
+    from zoo.publish.cite import cite
+
+    citation = cite(_catalog(request), report["id"])
+    return render(
+        request,
+        "class.html",
+        e=report,
+        pictures=_pictures(report["label"]),
+        bibtex=citation.bibtex(),
+        title=f"{report['id']} {report['label']}",
+    )
+
+
+def frame_page(request: Request) -> Response:
+    ref = request.path_params["ref"]
+    identifier = read_identifier(ref)
+    if identifier is None or identifier.kind != "frame":
+        raise HTTPException(404, f"{ref!r} is not a frame identifier such as FR16-2")
+    report = _entry_report(request, str(identifier))
+    if ref != report["id"]:
+        return RedirectResponse(f"/frames/{report['id']}", status_code=301)
+    return render(request, "frame.html", f=report, title=f"{report['id']} {report['label']}")
+
+
+def parameter_set_page(request: Request) -> Response:
+    text = request.path_params["params"]
+    try:
+        p = parse_params(text)
+    except ZooError as exc:
+        raise HTTPException(400, str(exc)) from None
+    catalog = _catalog(request)
+    entry = catalog.class_for_params(p)
+    if entry is None:
+        bound = catalog.complete_to()
+        where = (
+            f"{p} has area {p.area}, beyond the area {bound} up to which this catalog is complete"
+            if p.area > bound
+            else f"{p} is not a cycloid of this catalog"
+        )
+        raise HTTPException(404, where)
+    return RedirectResponse(f"/classes/{entry.id}", status_code=301)
+
+
+def _class_params(request: Request) -> tuple[str, ParameterSet]:
+    ref = request.path_params["ref"]
+    identifier = read_identifier(ref)
+    if identifier is None or identifier.kind != "class":
+        raise HTTPException(404, f"{ref!r} is not a class identifier such as CY16-3")
+    try:
+        entry = _catalog(request).get(str(identifier))
+    except ZooError as exc:
+        raise HTTPException(_status_of(exc), str(exc)) from None
+    return entry.id, parse_params(entry.label)
+
+
+def class_download(request: Request) -> Response:
+    """A file of an entry: net.pnml, net.dot, net.json, entry.json, cite.bib, VIEW.svg."""
+    name = request.path_params["file"]
+    class_id, p = _class_params(request)
+    from zoo.core.net import build_net
+
+    if name == "net.pnml":
+        from zoo.interchange.pnml import pnml_document
+
+        body, media = pnml_document(build_net(p)), "application/xml"
+    elif name == "net.dot":
+        from zoo.interchange.dot import dot_document
+
+        body, media = dot_document(build_net(p)), "text/vnd.graphviz"
+    elif name == "net.json":
+        from zoo.interchange.netjson import json_document
+
+        body, media = json_document(build_net(p)), "application/json"
+    elif name == "entry.json":
+        from zoo.web.app import json_text
+
+        body, media = json_text(_entry_report(request, class_id)), "application/json"
+    elif name == "cite.bib":
+        from zoo.publish.cite import cite
+
+        body, media = cite(_catalog(request), class_id).bibtex(), "application/x-bibtex"
+    elif name in ("parallelogram.svg", "net.svg"):
+        try:
+            body, media = picture(str(p), name.removesuffix(".svg")), "image/svg+xml"
+        except ZooError as exc:
+            raise HTTPException(400, str(exc)) from None
+    else:
+        raise HTTPException(404, f"no file {name!r} for {class_id}")
+    filename = f"{class_id}-{name}"
+    return Response(
+        body,
+        media_type=media,
+        headers={"content-disposition": f'attachment; filename="{filename}"'}
+        if not name.endswith(".svg")
+        else {},
+    )
+
+
+# --- identify --------------------------------------------------------------------------------
+
+_SAFE_NAME = re.compile(r"[^A-Za-z0-9._-]+")
+
+
+def upload_name(name: str | None) -> str:
+    """A display name for an uploaded file: its last path part, plain characters, short. It
+    only labels the answer; nothing is ever read or written under it."""
+    base = (name or "upload").replace("\\", "/").rsplit("/", 1)[-1]
+    return (_SAFE_NAME.sub("_", base).strip("._") or "upload")[:80]
+
+
+async def identify_answer(request: Request) -> dict[str, Any]:
+    """The object of ``zoo identify --format json`` for the uploaded file, or a ZooError."""
+    try:
+        form = await request.form(max_files=1, max_fields=4)
+    except Exception as exc:  # a malformed multipart body
+        raise ParameterError(f"cannot read the upload ({exc}); send a form with a file") from None
+    upload = form.get("file")
+    if not isinstance(upload, UploadFile):
+        raise ParameterError("no file in the upload; choose a PNML or net text file")
+    data = await upload.read(MAX_UPLOAD_BYTES + 1)
+    name = upload_name(upload.filename)
+    net = parse_upload(data, name)
+    catalog = _catalog(request)
+    try:
+        with anyio.fail_after(IDENTIFY_SECONDS):
+            answer = await anyio.to_thread.run_sync(
+                identify_upload, catalog, net, abandon_on_cancel=True
+            )
+    except TimeoutError:
+        raise LimitExceeded(
+            f"identifying {name} took over {IDENTIFY_SECONDS:.0f} s; run zoo identify FILE "
+            "on your own machine for nets this large"
+        ) from None
+    return answer.as_dict()
+
+
+def identify_form(request: Request) -> Response:
+    return render(request, "identify.html", answer=None, error=None, limit=MAX_UPLOAD_BYTES)
+
+
+async def identify_post(request: Request) -> Response:
+    try:
+        answer = await identify_answer(request)
+    except ZooError as exc:
+        return render(
+            request, "identify.html", 400, answer=None, error=str(exc), limit=MAX_UPLOAD_BYTES
+        )
+    return render(request, "identify.html", answer=answer, error=None, limit=MAX_UPLOAD_BYTES)
+
+
+# --- rings -----------------------------------------------------------------------------------
+
+
+def ring_page(request: Request) -> Response:
+    from zoo.core.rings import RingDesign, describe_ring
+
+    params = request.query_params
+    form = {
+        "items": params.get("items", ""),
+        "slots": params.get("slots", ""),
+        "individual_items": params.get("individual_items") == "on",
+        "individual_slots": params.get("individual_slots") == "on",
+    }
+    report = None
+    error = None
+    if form["items"] or form["slots"]:
+        try:
+            items = answers.read_bound(form["items"] or None, "items", 0, 10_000)
+            slots = answers.read_bound(form["slots"] or None, "slots", 0, 10_000)
+            design = RingDesign(items, slots, form["individual_items"], form["individual_slots"])
+            entry = _catalog(request).class_for_params(design.params)
+            report = describe_ring(design, None if entry is None else entry.id)
+        except ZooError as exc:
+            error = str(exc)
+    return render(request, "ring.html", 400 if error else 200, form=form, r=report, error=error)
+
+
+# --- docs ------------------------------------------------------------------------------------
+
+
+def docs_index(request: Request) -> Response:
+    docs = request.app.state.docs
+    return render(request, "docs.html", pages=list(docs.pages.values()), page=None)
+
+
+def doc_page(request: Request) -> Response:
+    docs = request.app.state.docs
+    name = request.path_params["name"].removesuffix(".md")
+    page = docs.pages.get(name)
+    if page is None:
+        raise HTTPException(404, f"no docs page {name!r}")
+    return render(request, "docs.html", pages=None, page=page, html=Markup(page.html))
+
+
+def doc_image(request: Request) -> Response:
+    found = request.app.state.docs.images.get(request.path_params["name"])
+    if found is None:
+        raise HTTPException(404, "no such picture")
+    return Response(found, media_type="image/png")
+
+
+def robots(request: Request) -> Response:
+    return PlainTextResponse("User-agent: *\nDisallow: /search\nDisallow: /api/\n")
+
+
+def routes() -> list[Route]:
+    sys.set_int_max_str_digits(0)  # state counts of large classes have many digits
+    return [
+        Route("/", home),
+        Route("/search", search_page),
+        Route("/search.csv", search_csv),
+        Route("/search.json", search_json),
+        Route("/classes/{ref}", class_page),
+        Route("/classes/{ref}/{file}", class_download),
+        Route("/frames/{ref}", frame_page),
+        Route("/parameter-sets/{params}", parameter_set_page),
+        Route("/identify", identify_form, methods=["GET"]),
+        Route("/identify", identify_post, methods=["POST"]),
+        Route("/rings", ring_page),
+        Route("/docs", docs_index),
+        Route("/docs/images/{name}", doc_image),
+        Route("/docs/{name:path}", doc_page),
+        Route("/robots.txt", robots),
+    ]
