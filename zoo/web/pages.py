@@ -242,7 +242,7 @@ def picture(label: str, view: str) -> str:
 
 
 def _pictures(label: str) -> list[dict[str, Any]]:
-    shown = []
+    shown: list[dict[str, Any]] = []
     for view, caption in (
         ("parallelogram", "Fundamental parallelogram"),
         ("net", "The net, transitions on rings"),
@@ -428,19 +428,22 @@ def ring_page(request: Request) -> Response:
     from zoo.core.rings import RingDesign, describe_ring
 
     params = request.query_params
-    form = {
-        "items": params.get("items", ""),
-        "slots": params.get("slots", ""),
-        "individual_items": params.get("individual_items") == "on",
-        "individual_slots": params.get("individual_slots") == "on",
+    items_text, slots_text = params.get("items", ""), params.get("slots", "")
+    named_items = params.get("individual_items") == "on"
+    named_slots = params.get("individual_slots") == "on"
+    form: dict[str, Any] = {
+        "items": items_text,
+        "slots": slots_text,
+        "individual_items": named_items,
+        "individual_slots": named_slots,
     }
     report = None
     error = None
-    if form["items"] or form["slots"]:
+    if items_text or slots_text:
         try:
-            items = answers.read_bound(form["items"] or None, "items", 0, 10_000)
-            slots = answers.read_bound(form["slots"] or None, "slots", 0, 10_000)
-            design = RingDesign(items, slots, form["individual_items"], form["individual_slots"])
+            items = answers.read_bound(items_text or None, "items", 0, 10_000)
+            slots = answers.read_bound(slots_text or None, "slots", 0, 10_000)
+            design = RingDesign(items, slots, named_items, named_slots)
             entry = _catalog(request).class_for_params(design.params)
             report = describe_ring(design, None if entry is None else entry.id)
         except ZooError as exc:
