@@ -143,8 +143,11 @@ def _static_files() -> dict[str, StaticFile]:
     return files
 
 
-def create_app(location: str | None = None, catalog: Catalog | None = None) -> Starlette:
-    """The web catalog of the catalog at ``location`` (a file path or database URL)."""
+def create_app(
+    location: str | None = None, catalog: Catalog | None = None, *, static_site: bool = False
+) -> Starlette:
+    """The web catalog of the catalog at ``location`` (a file path or database URL);
+    ``static_site`` renders pages for ``zoo site`` (no forms that need a server)."""
     from zoo.web import api, pages
     from zoo.web.docs import load_docs
 
@@ -181,6 +184,7 @@ def create_app(location: str | None = None, catalog: Catalog | None = None) -> S
     )
     app.state.catalog = opened
     app.state.docs = load_docs()
+    app.state.static_site = static_site
     app.add_middleware(BodyLimit)
     app.add_middleware(SecurityHeaders)
     return app

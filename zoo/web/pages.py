@@ -55,7 +55,10 @@ _ENV.filters["number"] = lambda value: f"{value:,}" if isinstance(value, int) el
 
 def render(request: Request | None, template: str, status: int = 200, **values: Any) -> Response:
     """A page from a template, with the catalog's completeness bound in every footer."""
-    html = _ENV.get_template(template).render(**values)
+    # A static site (zoo site) has no server behind it: its pages leave out the forms that
+    # need one and search a shipped JSON index instead.
+    static_site = request is not None and getattr(request.app.state, "static_site", False)
+    html = _ENV.get_template(template).render(static_site=static_site, **values)
     return HTMLResponse(html, status_code=status)
 
 
@@ -93,7 +96,7 @@ def home(request: Request) -> Response:
         rows=rows,
         totals=totals,
         plot=Markup(counts_svg(rows)),
-        examples=[(q, why, "/search?" + urlencode({"q": q})) for q, why in EXAMPLE_QUERIES],
+        examples=[(q, why, urlencode({"q": q})) for q, why in EXAMPLE_QUERIES],
     )
 
 
@@ -225,6 +228,29 @@ def search_json(request: Request) -> Response:
         json_text(page.items()),
         media_type="application/json",
         headers=_download_headers(page, "zoo-search.json"),
+    )
+
+
+# --- areas ---------------------------------------------------------------------------------
+
+
+def area_page(request: Request) -> Response:
+    """Every class of one area, by rank, with its frame: the index of an area."""
+    text = request.path_params["area"]
+    area = answers.read_bound(text, "area", 0, 10**6) if text.isdigit() else -1
+    catalog = _catalog(request)
+    if area not in catalog.complete_areas():
+        raise HTTPException(404, f"area {text} is not a complete area of this catalog")
+    entries = list(catalog.iter_entries([area]))
+    areas = set(catalog.complete_areas())
+    return render(
+        request,
+        "area.html",
+        area=area,
+        entries=entries,
+        previous=area - 1 if area - 1 in areas else None,
+        next=area + 1 if area + 1 in areas else None,
+        title=f"Area {area}",
     )
 
 
@@ -475,6 +501,11 @@ def doc_image(request: Request) -> Response:
     return Response(found, media_type="image/png")
 
 
+def site_search(request: Request) -> Response:
+    """The search page of a static site: filters ``/search-index.json`` in the browser."""
+    return render(request, "site-search.html", title="Search")
+
+
 def robots(request: Request) -> Response:
     return PlainTextResponse("User-agent: *\nDisallow: /search\nDisallow: /api/\n")
 
@@ -489,6 +520,7 @@ def routes() -> list[Route]:
         Route("/classes/{ref}", class_page),
         Route("/classes/{ref}/{file}", class_download),
         Route("/frames/{ref}", frame_page),
+        Route("/areas/{area}", area_page),
         Route("/parameter-sets/{params}", parameter_set_page),
         Route("/identify", identify_form, methods=["GET"]),
         Route("/identify", identify_post, methods=["POST"]),
@@ -497,4 +529,5 @@ def routes() -> list[Route]:
         Route("/docs/images/{name}", doc_image),
         Route("/docs/{name:path}", doc_page),
         Route("/robots.txt", robots),
+        Route("/search.html", site_search),
     ]
