@@ -15,6 +15,7 @@ import json
 import os
 import tempfile
 from collections.abc import Callable
+from concurrent.futures import ThreadPoolExecutor
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
@@ -138,7 +139,10 @@ def write_site(
                     progress(f"{n:,}/{len(addresses):,} {path}")
             return pages, files
 
-        asyncio.run(render_all())
+        # A thread of its own, so that a caller already inside an event loop (a notebook, a
+        # browser-driving test) can write a site too.
+        with ThreadPoolExecutor(max_workers=1) as pool:
+            pool.submit(asyncio.run, render_all()).result()
         index = {"complete_to": catalog.complete_to(), "classes": search_index(entries)}
         _write(folder / "search-index.json", json.dumps(index, separators=(",", ":")).encode())
         return SiteReport(folder, pages, files + 1, len(entries), catalog.complete_to())
