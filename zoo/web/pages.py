@@ -27,6 +27,7 @@ from zoo.catalog.identifiers import read_identifier
 from zoo.catalog.service import Catalog
 from zoo.core.params import ParameterSet, parse_params
 from zoo.errors import LimitExceeded, NotInCatalog, ParameterError, QuerySyntaxError, ZooError
+from zoo.query.fields import field_named
 from zoo.web import answers
 from zoo.web.catalog_access import MAX_UPLOAD_BYTES, identify_upload, parse_upload
 from zoo.web.plots import counts_svg
@@ -187,7 +188,7 @@ def search_page(request: Request) -> Response:
     values.update(
         page=page,
         columns=columns,
-        sortable=["area", *columns],
+        sortable=["area", *(c for c in columns if field_named(c) is not None)],
         sort_link=sort_link,
         sort_mark=sort_mark,
         pages=pages,
