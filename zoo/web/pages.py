@@ -197,6 +197,7 @@ def search_page(request: Request) -> Response:
         note=page.result.completeness_note(),
         csv_link=_address("/search.csv", **keep, sort=page.sort),
         json_link=_address("/search.json", **keep, sort=page.sort),
+        max_download=MAX_DOWNLOAD_ROWS,
     )
     return render(request, "search.html", **values)
 
