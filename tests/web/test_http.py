@@ -6,6 +6,7 @@ from __future__ import annotations
 import hashlib
 import json
 import xml.etree.ElementTree as ET
+from collections.abc import Iterator
 from pathlib import Path
 
 import httpx
@@ -234,3 +235,18 @@ def test_read_only_on_postgresql(postgres_url: str, web_catalog: str) -> None:
                 connection.execute(text("DELETE FROM seeds"))
     finally:
         catalog.close()
+
+
+def test_a_streamed_upload_is_cut_at_the_limit(live_url: str) -> None:
+    def body() -> Iterator[bytes]:  # no Content-Length: the server counts while it reads
+        yield b'--edge\r\nContent-Disposition: form-data; name="file"; filename="a.txt"\r\n\r\n'
+        for _ in range(300):
+            yield b"#" * 10_000 + b"\n"
+        yield b"\r\n--edge--\r\n"
+
+    answer = httpx.post(
+        f"{live_url}/api/identify",
+        content=body(),
+        headers={"content-type": "multipart/form-data; boundary=edge"},
+    )
+    assert answer.status_code == 413 and "over the limit" in answer.json()["error"]

@@ -33,6 +33,10 @@ def problem(status: int, message: str) -> JSONResponse:
 
 
 def _failure(exc: ZooError) -> JSONResponse:
+    from zoo.web.catalog_access import UploadTooLarge
+
+    if isinstance(exc, UploadTooLarge):
+        return problem(413, str(exc))
     return problem(404 if isinstance(exc, NotInCatalog) else 400, str(exc))
 
 

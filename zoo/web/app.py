@@ -20,7 +20,7 @@ from starlette.routing import Route
 from starlette.types import ASGIApp, Message, Receive, Scope, Send
 
 from zoo.catalog.service import Catalog
-from zoo.web.catalog_access import MAX_UPLOAD_BYTES, open_read_only
+from zoo.web.catalog_access import MAX_UPLOAD_BYTES, UploadTooLarge, open_read_only
 
 #: The content security policy of every answer: scripts and styles from this server only (the
 #: inline SVG pictures carry their own <style>, hence 'unsafe-inline' for styles, never for
@@ -70,10 +70,6 @@ class SecurityHeaders:
         await self.app(scope, receive, send_with_headers)
 
 
-class _BodyTooLarge(Exception):
-    pass
-
-
 class BodyLimit:
     """ASGI middleware: refuse a request body over ``MAX_BODY_BYTES`` with 413, whether its
     length is declared or streamed, before a byte of it is parsed further."""
@@ -99,7 +95,7 @@ class BodyLimit:
             if message["type"] == "http.request":
                 seen += len(message.get("body", b""))
                 if seen > self.limit:
-                    raise _BodyTooLarge
+                    raise UploadTooLarge(too_large_text(self.limit))
             return message
 
         async def tracking_send(message: Message) -> None:
@@ -109,14 +105,17 @@ class BodyLimit:
 
         try:
             await self.app(scope, counting_receive, tracking_send)
-        except _BodyTooLarge:
+        except UploadTooLarge:
             if not started:
                 await _too_large(scope, send, self.limit)
 
 
+def too_large_text(limit: int) -> str:
+    return f"the request body is over the limit of {limit:,} bytes; upload a smaller file"
+
+
 async def _too_large(scope: Scope, send: Send, limit: int) -> None:
-    text = f"the request body is over the limit of {limit:,} bytes; upload a smaller file"
-    response = error_response(scope.get("path", ""), 413, text)
+    response = error_response(scope.get("path", ""), 413, too_large_text(limit))
     await response(scope, _empty_receive, send)
 
 

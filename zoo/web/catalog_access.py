@@ -12,7 +12,7 @@ from typing import Any
 from sqlalchemy import event
 
 from zoo.catalog.service import Catalog
-from zoo.errors import FormatError
+from zoo.errors import FormatError, LimitExceeded
 from zoo.interchange import nettext, pnml
 from zoo.interchange.identify import Identification, identify_net
 from zoo.interchange.netfile import refuse_unread_formats
@@ -21,6 +21,10 @@ from zoo.interchange.netmodel import PlaceTransitionNet, looks_like_xml
 #: Largest upload the identify page and API accept (common practice: a few MiB for a form
 #: upload; the largest PNML of an area-1000 cycloid is well under this).
 MAX_UPLOAD_BYTES = 2 * 1024 * 1024
+
+
+class UploadTooLarge(LimitExceeded):
+    """A request body over the limit (answered with 413)."""
 
 
 def open_read_only(location: str | None) -> Catalog:
@@ -66,4 +70,10 @@ def identify_upload(catalog: Catalog, net: PlaceTransitionNet) -> Identification
     return identify_net(net, catalog.url, use_catalog=True)
 
 
-__all__ = ["MAX_UPLOAD_BYTES", "identify_upload", "open_read_only", "parse_upload"]
+__all__ = [
+    "MAX_UPLOAD_BYTES",
+    "UploadTooLarge",
+    "identify_upload",
+    "open_read_only",
+    "parse_upload",
+]

@@ -29,7 +29,12 @@ from zoo.core.params import ParameterSet, parse_params
 from zoo.errors import LimitExceeded, NotInCatalog, ParameterError, QuerySyntaxError, ZooError
 from zoo.query.fields import field_named
 from zoo.web import answers
-from zoo.web.catalog_access import MAX_UPLOAD_BYTES, identify_upload, parse_upload
+from zoo.web.catalog_access import (
+    MAX_UPLOAD_BYTES,
+    UploadTooLarge,
+    identify_upload,
+    parse_upload,
+)
 from zoo.web.plots import counts_svg
 
 #: Seconds an identification may take before the page gives up (common practice: answer a web
@@ -413,6 +418,8 @@ async def identify_answer(request: Request) -> dict[str, Any]:
     """The object of ``zoo identify --format json`` for the uploaded file, or a ZooError."""
     try:
         form = await request.form(max_files=1, max_fields=4)
+    except UploadTooLarge:
+        raise
     except Exception as exc:  # a malformed multipart body
         raise ParameterError(f"cannot read the upload ({exc}); send a form with a file") from None
     upload = form.get("file")
@@ -443,8 +450,9 @@ async def identify_post(request: Request) -> Response:
     try:
         answer = await identify_answer(request)
     except ZooError as exc:
+        status = 413 if isinstance(exc, UploadTooLarge) else 400
         return render(
-            request, "identify.html", 400, answer=None, error=str(exc), limit=MAX_UPLOAD_BYTES
+            request, "identify.html", status, answer=None, error=str(exc), limit=MAX_UPLOAD_BYTES
         )
     return render(request, "identify.html", answer=answer, error=None, limit=MAX_UPLOAD_BYTES)
 
