@@ -62,9 +62,9 @@ def test_zoo_serve_answers_on_loopback(web_catalog: str) -> None:
 def test_identify_gives_up_after_its_time_limit(
     live_url: str, monkeypatch: pytest.MonkeyPatch
 ) -> None:
-    from zoo.web import pages
+    from zoo.web import catalog_access
 
-    monkeypatch.setattr(pages, "IDENTIFY_SECONDS", 1e-9)  # the server runs in this process
+    monkeypatch.setattr(catalog_access, "IDENTIFY_SECONDS", 1e-9)  # the server runs in this process
     data = (DATA / "pipeline-ring.pnml").read_bytes()
     answer: Any = httpx.post(f"{live_url}/api/identify", files={"file": ("ring.pnml", data)})
     assert answer.status_code == 400

@@ -107,7 +107,7 @@ def parameter_set(request: Request) -> Response:
 
 
 async def identify(request: Request) -> Response:
-    from zoo.web.pages import identify_answer
+    from zoo.web.catalog_access import identify_answer
 
     try:
         return JSONResponse(await identify_answer(request))

@@ -7,20 +7,19 @@ path taken from a request ever reaches the file system.
 
 from __future__ import annotations
 
-import json
 from dataclasses import dataclass
 from importlib import resources
-from typing import Any
 
 from starlette.applications import Starlette
 from starlette.exceptions import HTTPException
 from starlette.requests import Request
-from starlette.responses import JSONResponse, Response
+from starlette.responses import Response
 from starlette.routing import Route
 from starlette.types import ASGIApp, Message, Receive, Scope, Send
 
 from zoo.catalog.service import Catalog
 from zoo.web.catalog_access import MAX_UPLOAD_BYTES, UploadTooLarge, open_read_only
+from zoo.web.rendering import error_response
 
 #: The content security policy of every answer: scripts and styles from this server only (the
 #: inline SVG pictures carry their own <style>, hence 'unsafe-inline' for styles, never for
@@ -123,15 +122,6 @@ async def _empty_receive() -> Message:
     return {"type": "http.request", "body": b"", "more_body": False}
 
 
-def error_response(path: str, status: int, message: str) -> Response:
-    """An error for a reader: JSON ``{"error": ...}`` under /api, else a short HTML page."""
-    if path.startswith("/api/") or path.endswith((".json", ".csv")):
-        return JSONResponse({"error": message, "status": status}, status_code=status)
-    from zoo.web.pages import render_error
-
-    return render_error(message, status)
-
-
 def _static_files() -> dict[str, StaticFile]:
     types = {".css": "text/css", ".js": "text/javascript", ".svg": "image/svg+xml"}
     files: dict[str, StaticFile] = {}
@@ -189,9 +179,4 @@ def create_app(
     return app
 
 
-def json_text(value: Any) -> str:
-    """JSON as ``zoo ... --format json`` prints it (indented, UTF-8 kept)."""
-    return json.dumps(value, ensure_ascii=False, indent=2) + "\n"
-
-
-__all__ = ["CONTENT_SECURITY_POLICY", "MAX_BODY_BYTES", "create_app", "error_response"]
+__all__ = ["CONTENT_SECURITY_POLICY", "MAX_BODY_BYTES", "create_app"]

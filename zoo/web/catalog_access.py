@@ -7,12 +7,16 @@ page cannot change stored data.
 
 from __future__ import annotations
 
+import re
 from typing import Any
 
+import anyio
 from sqlalchemy import event
+from starlette.datastructures import UploadFile
+from starlette.requests import Request
 
 from zoo.catalog.service import Catalog
-from zoo.errors import FormatError, LimitExceeded
+from zoo.errors import FormatError, LimitExceeded, ParameterError
 from zoo.interchange import nettext, pnml
 from zoo.interchange.identify import Identification, identify_net
 from zoo.interchange.netfile import refuse_unread_formats
@@ -21,6 +25,9 @@ from zoo.interchange.netmodel import PlaceTransitionNet, looks_like_xml
 #: Largest upload the identify page and API accept (common practice: a few MiB for a form
 #: upload; the largest PNML of an area-1000 cycloid is well under this).
 MAX_UPLOAD_BYTES = 2 * 1024 * 1024
+#: Seconds an identification may take before the page gives up (common practice: answer a web
+#: request within tens of seconds; identify of a catalog-sized net takes well under one).
+IDENTIFY_SECONDS = 20.0
 
 
 class UploadTooLarge(LimitExceeded):
@@ -68,6 +75,44 @@ def identify_upload(catalog: Catalog, net: PlaceTransitionNet) -> Identification
     """The one call of ``zoo.interchange.identify.identify_net``: the only line to change when
     its signature changes."""
     return identify_net(net, catalog.url, use_catalog=True)
+
+
+_SAFE_NAME = re.compile(r"[^A-Za-z0-9._-]+")
+
+
+def upload_name(name: str | None) -> str:
+    """A display name for an uploaded file: its last path part, plain characters, short. It
+    only labels the answer; nothing is ever read or written under it."""
+    base = (name or "upload").replace("\\", "/").rsplit("/", 1)[-1]
+    return (_SAFE_NAME.sub("_", base).strip("._") or "upload")[:80]
+
+
+async def identify_answer(request: Request) -> dict[str, Any]:
+    """The object of ``zoo identify --format json`` for the uploaded file, or a ZooError."""
+    try:
+        form = await request.form(max_files=1, max_fields=4)
+    except UploadTooLarge:
+        raise
+    except Exception as exc:  # a malformed multipart body
+        raise ParameterError(f"cannot read the upload ({exc}); send a form with a file") from None
+    upload = form.get("file")
+    if not isinstance(upload, UploadFile):
+        raise ParameterError("no file in the upload; choose a PNML or net text file")
+    data = await upload.read(MAX_UPLOAD_BYTES + 1)
+    name = upload_name(upload.filename)
+    net = parse_upload(data, name)
+    catalog: Catalog = request.app.state.catalog
+    try:
+        with anyio.fail_after(IDENTIFY_SECONDS):
+            answer = await anyio.to_thread.run_sync(
+                identify_upload, catalog, net, abandon_on_cancel=True
+            )
+    except TimeoutError:
+        raise LimitExceeded(
+            f"identifying {name} took over {IDENTIFY_SECONDS:.0f} s; run zoo identify FILE "
+            "on your own machine for nets this large"
+        ) from None
+    return answer.as_dict()
 
 
 __all__ = [

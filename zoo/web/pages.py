@@ -8,19 +8,15 @@ to the class of that parameter set, ``/search?q=...`` a query, ``/identify``, ``
 
 from __future__ import annotations
 
-import re
 import sys
 from functools import lru_cache
 from typing import Any
 from urllib.parse import urlencode
 
-import anyio
-from jinja2 import Environment, PackageLoader, select_autoescape
 from markupsafe import Markup
-from starlette.datastructures import UploadFile
 from starlette.exceptions import HTTPException
 from starlette.requests import Request
-from starlette.responses import HTMLResponse, PlainTextResponse, RedirectResponse, Response
+from starlette.responses import PlainTextResponse, RedirectResponse, Response
 from starlette.routing import Route
 
 from zoo.catalog.identifiers import read_identifier
@@ -29,17 +25,10 @@ from zoo.core.params import ParameterSet, parse_params
 from zoo.errors import LimitExceeded, NotInCatalog, ParameterError, QuerySyntaxError, ZooError
 from zoo.query.fields import field_named
 from zoo.web import answers
-from zoo.web.catalog_access import (
-    MAX_UPLOAD_BYTES,
-    UploadTooLarge,
-    identify_upload,
-    parse_upload,
-)
+from zoo.web.catalog_access import MAX_UPLOAD_BYTES, UploadTooLarge, identify_answer
 from zoo.web.plots import counts_svg
+from zoo.web.rendering import json_text, render
 
-#: Seconds an identification may take before the page gives up (common practice: answer a web
-#: request within tens of seconds; identify of a catalog-sized net takes well under one).
-IDENTIFY_SECONDS = 20.0
 #: Rows a CSV or JSON download of a search holds at most.
 MAX_DOWNLOAD_ROWS = 10_000
 #: Queries shown on the home page, each a link to its search.
@@ -49,30 +38,6 @@ EXAMPLE_QUERIES = (
     ("tokens = 4 and area <= 12", "four tokens, areas up to 12"),
     ("cyclic and not regular", "cyclic transition group, not regular"),
 )
-
-_ENV = Environment(
-    loader=PackageLoader("zoo.web", "templates"),
-    autoescape=select_autoescape(["html"]),
-    trim_blocks=True,
-    lstrip_blocks=True,
-)
-_ENV.filters["number"] = lambda value: f"{value:,}" if isinstance(value, int) else str(value)
-
-
-def render(request: Request | None, template: str, status: int = 200, **values: Any) -> Response:
-    """A page from a template, with the catalog's completeness bound in every footer."""
-    # A static site (zoo site) has no server behind it: its pages leave out the forms that
-    # need one and search a shipped JSON index instead.
-    static_site = request is not None and getattr(request.app.state, "static_site", False)
-    html = _ENV.get_template(template).render(static_site=static_site, **values)
-    return HTMLResponse(html, status_code=status)
-
-
-def render_error(message: str, status: int) -> Response:
-    titles = {400: "Cannot answer", 404: "Not in the catalog", 413: "Too large"}
-    return render(
-        None, "error.html", status, title=titles.get(status, "Error"), message=message, code=status
-    )
 
 
 def _catalog(request: Request) -> Catalog:
@@ -228,8 +193,6 @@ def search_csv(request: Request) -> Response:
 
 
 def search_json(request: Request) -> Response:
-    from zoo.web.app import json_text
-
     page = _search_from(request, download=True)
     return Response(
         json_text(page.items()),
@@ -378,8 +341,6 @@ def class_download(request: Request) -> Response:
 
         body, media = json_document(build_net(p)), "application/json"
     elif name == "entry.json":
-        from zoo.web.app import json_text
-
         body, media = json_text(_entry_report(request, class_id)), "application/json"
     elif name == "cite.bib":
         from zoo.publish.cite import cite
@@ -403,43 +364,6 @@ def class_download(request: Request) -> Response:
 
 
 # --- identify --------------------------------------------------------------------------------
-
-_SAFE_NAME = re.compile(r"[^A-Za-z0-9._-]+")
-
-
-def upload_name(name: str | None) -> str:
-    """A display name for an uploaded file: its last path part, plain characters, short. It
-    only labels the answer; nothing is ever read or written under it."""
-    base = (name or "upload").replace("\\", "/").rsplit("/", 1)[-1]
-    return (_SAFE_NAME.sub("_", base).strip("._") or "upload")[:80]
-
-
-async def identify_answer(request: Request) -> dict[str, Any]:
-    """The object of ``zoo identify --format json`` for the uploaded file, or a ZooError."""
-    try:
-        form = await request.form(max_files=1, max_fields=4)
-    except UploadTooLarge:
-        raise
-    except Exception as exc:  # a malformed multipart body
-        raise ParameterError(f"cannot read the upload ({exc}); send a form with a file") from None
-    upload = form.get("file")
-    if not isinstance(upload, UploadFile):
-        raise ParameterError("no file in the upload; choose a PNML or net text file")
-    data = await upload.read(MAX_UPLOAD_BYTES + 1)
-    name = upload_name(upload.filename)
-    net = parse_upload(data, name)
-    catalog = _catalog(request)
-    try:
-        with anyio.fail_after(IDENTIFY_SECONDS):
-            answer = await anyio.to_thread.run_sync(
-                identify_upload, catalog, net, abandon_on_cancel=True
-            )
-    except TimeoutError:
-        raise LimitExceeded(
-            f"identifying {name} took over {IDENTIFY_SECONDS:.0f} s; run zoo identify FILE "
-            "on your own machine for nets this large"
-        ) from None
-    return answer.as_dict()
 
 
 def identify_form(request: Request) -> Response:
