@@ -14,6 +14,7 @@ def test_raw_html_in_markdown_is_escaped() -> None:
     html = render_markdown('Hi <script>alert("x")</script>\n\n<img src=x onerror="alert(1)">\n')
     assert "<script>" not in html and "&lt;script&gt;" in html
     assert "<img" not in html
+    assert "editors" not in render_markdown("<!-- a note for editors -->\n\nText.")
 
 
 def test_relative_links_keep_their_folder() -> None:

@@ -19,6 +19,7 @@ _NAME = re.compile(r"[a-z0-9][a-z0-9-]*")
 _LOCAL_LINK = re.compile(
     r'href="(?:\./)?((?:\.\./)?(?:[a-z0-9-]+/)?(?:[a-z0-9-]+|README))\.md(#[^"]*)?"'
 )
+_COMMENT = re.compile(r"<!--.*?-->", re.DOTALL)
 _IMAGE = re.compile(r'src="(?:\.\./docs/|\./)?images/([A-Za-z0-9_.-]+\.png)"')
 
 
@@ -38,6 +39,8 @@ class Docs:
 def render_markdown(text: str, folder: str = "") -> str:
     """HTML of Markdown text, raw HTML escaped, links to other .md pages made web addresses
     (``folder`` is the page's own folder under docs/, for its relative links)."""
+    # HTML comments are notes for the editors of a page, not for its readers.
+    text = _COMMENT.sub("", text)
     html = MarkdownIt("commonmark", {"html": False}).enable("table").render(text)
 
     def address(match: re.Match[str]) -> str:
