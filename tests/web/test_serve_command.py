@@ -21,11 +21,11 @@ DATA = Path(__file__).resolve().parents[1] / "data" / "pnml"
 
 
 def test_serve_refuses_a_missing_catalog(tmp_path: Path) -> None:
-    missing = tmp_path / "none.sqlite3"
+    missing = tmp_path / "folder" / "none.sqlite3"
     result = runner.invoke(app, ["serve", "--db", str(missing)])
     assert result.exit_code == 1
     assert result.stderr.startswith("Error: no catalog at") and "zoo build" in result.stderr
-    assert not missing.exists()  # a reader never creates a catalog
+    assert not missing.parent.exists()  # a reader leaves nothing behind, not even a folder
 
 
 def test_serve_refuses_a_bad_port(web_catalog: str) -> None:

@@ -7,7 +7,10 @@ page cannot change stored data.
 
 from __future__ import annotations
 
+import os
 import re
+import shlex
+from pathlib import Path
 from typing import Any
 
 import anyio
@@ -15,8 +18,8 @@ from sqlalchemy import event
 from starlette.datastructures import UploadFile
 from starlette.requests import Request
 
-from zoo.catalog.service import Catalog
-from zoo.errors import FormatError, LimitExceeded, ParameterError
+from zoo.catalog.service import DEFAULT_MAX_AREA, Catalog
+from zoo.errors import CatalogError, FormatError, LimitExceeded, ParameterError
 from zoo.interchange import nettext, pnml
 from zoo.interchange.identify import Identification, identify_net
 from zoo.interchange.netfile import refuse_unread_formats
@@ -35,7 +38,18 @@ class UploadTooLarge(LimitExceeded):
 
 
 def open_read_only(location: str | None) -> Catalog:
-    """Open an existing catalog (never creating one) with every connection read-only."""
+    """Open an existing catalog (never creating one) with every connection read-only.
+
+    A file path that names no file is refused before the catalog service resolves it, which
+    would create the missing parent folders: a reader leaves nothing behind.
+    """
+    value = (location or "").strip() or os.environ.get("ZOO_CATALOG", "").strip()
+    if value and "://" not in value and not Path(value).expanduser().is_file():
+        path = Path(value).expanduser().absolute()
+        raise CatalogError(
+            f"no catalog at {path}; build one with: zoo build --max-area {DEFAULT_MAX_AREA} "
+            f"--db {shlex.quote(str(path))}"
+        )
     catalog = Catalog.open(location)
     engine = catalog.engine
     backend = engine.url.get_backend_name()
