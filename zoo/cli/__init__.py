@@ -17,6 +17,7 @@ from zoo.cli import (  # noqa: F401  (command registration)
     pictures,
     publish,
     rings,
+    serve,
 )
 from zoo.cli.app import INTERRUPTED, USAGE_ERROR, USER_ERROR, app, exit_status, print_error
 from zoo.errors import ZooError

@@ -449,32 +449,11 @@ def show_entry(ref: str, fmt: str, db: str | None) -> None:
     classes on it, the seeds, and a citation line. ``fmt`` is ``table`` or ``json``. Never
     builds a catalog; raises ZooError (the caller prints it) when the entry is not there.
     """
-    from zoo.catalog.identifiers import read_identifier
     from zoo.catalog.service import Catalog
-    from zoo.publish.cite import cite
+    from zoo.publish.entry_report import entry_report
 
-    identifier = read_identifier(ref)
     with Catalog.open(db) as catalog:
-        citation = cite(catalog, ref).text()
-        if identifier is not None and identifier.kind == "frame":
-            frame = catalog.frame(str(identifier))
-            report: dict[str, Any] = {**frame.as_dict(), "citation": citation}
-            report["complete_to"] = catalog.complete_to()
-            labels = {c: catalog.get(c).label for c in frame.class_ids}
-            report["class_labels"] = labels
-        else:
-            entry = catalog.get(ref)
-            frame = catalog.frame(entry.frame_id)
-            report = entry.as_dict()
-            report["frame"] = {
-                "id": frame.id,
-                "label": frame.label,
-                "net_automorphisms": frame.automorphisms,
-                "lattice_key": list(frame.lattice_key),
-                "other_classes": [c for c in frame.class_ids if c != entry.id],
-            }
-            report["citation"] = citation
-            report["complete_to"] = catalog.complete_to()
+        report = entry_report(catalog, ref)
     if fmt == "json":
         print_json(report)
         return
