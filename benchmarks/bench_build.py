@@ -28,6 +28,7 @@ import tempfile
 import time
 from pathlib import Path
 
+from zoo.catalog.build import build_catalog
 from zoo.catalog.classify import classify_area
 from zoo.catalog.enumeration import iter_parameter_sets
 from zoo.catalog.service import Catalog
@@ -55,7 +56,7 @@ def bench_build(max_area: int, jobs: int) -> Path:
     started = time.perf_counter()
     with Catalog.open(str(location), create=True) as catalog:
         opened = time.perf_counter()
-        report = catalog.build(max_area, jobs=jobs)
+        report = build_catalog(catalog, max_area, jobs=jobs)
     wall = time.perf_counter() - started
     children = resource.getrusage(resource.RUSAGE_CHILDREN)
     own = resource.getrusage(resource.RUSAGE_SELF)

@@ -40,6 +40,7 @@ from pathlib import Path
 
 import httpx
 
+from zoo.catalog.build import build_catalog
 from zoo.catalog.service import Catalog
 
 QUERIES = (
@@ -87,7 +88,7 @@ def build(location: str, max_area: int) -> list[str]:
     with Catalog.open(location, create=True) as catalog:
         if catalog.complete_to() < max_area:
             started = time.perf_counter()
-            catalog.build(max_area, jobs=2)
+            build_catalog(catalog, max_area, jobs=2)
             print(f"  built area <= {max_area} in {time.perf_counter() - started:.1f} s")
         return [e.id for e in catalog.iter_entries()]
 

@@ -27,6 +27,8 @@ from typing import Any
 import pytest
 from sqlalchemy.engine import make_url
 
+from zoo.catalog.build import build_catalog
+
 ADMIN_URL = os.environ.get("ZOO_TEST_POSTGRES", "postgresql://postgres@127.0.0.1:5432/test")
 
 _schema_numbers = itertools.count(1)
@@ -155,5 +157,5 @@ def small_catalog(tmp_path_factory: pytest.TempPathFactory) -> str:
 
     path = tmp_path_factory.mktemp("small-catalog") / "catalog.sqlite3"
     with Catalog.open(str(path), create=True) as catalog:
-        catalog.build(12)
+        build_catalog(catalog, 12)
     return str(path)

@@ -44,7 +44,7 @@ def test_classes_and_frames_equal_nauty_on_every_parameter_set(area: int) -> Non
 
 
 def test_identifiers_recomputed_from_scratch_agree() -> None:
-    # Rank = position among the classes of the area ordered by smallest member (design.md §2),
+    # Rank = position among the classes of the area ordered by smallest member (docs/citing.md),
     # recomputed here from the nauty partition alone.
     for area in (8, 12, 16, 20):
         result = classified(area)
@@ -60,8 +60,9 @@ def test_identifiers_recomputed_from_scratch_agree() -> None:
 
 @pytest.mark.parametrize("area", range(2, 101))
 def test_typed_net_classes_per_area_are_sigma_minus_tau(area: int) -> None:
-    # theory.md §2.4: sigma(A) - tau(A) typed nets per area [VERIFIED A <= 24 there]; the
-    # distinct lattice keys are the typed net classes (theory.md §5.1).
+    # docs/theory/lattice-key.md: sigma(A) - tau(A) typed nets per area [VERIFIED A <= 24 there];
+    # the
+    # distinct lattice keys are the typed net classes (docs/theory/isomorphism.md).
     lattices = {algebra.lattice_key(p) for p in iter_parameter_sets(area)}
     assert len(lattices) == int(divisor_sigma(area)) - int(divisor_count(area))
 
@@ -77,7 +78,7 @@ def _frame_of(result: AreaClassification, text: str) -> str:
 
 
 def test_published_isomorphisms() -> None:
-    # theory.md §5.1: swap pair, exceptional family, same net with different markings.
+    # docs/theory/isomorphism.md: swap pair, exceptional family, same net with different markings.
     a16 = classified(16)
     assert _class_of(a16, "C(4,2,2,3)") == _class_of(a16, "C(2,4,3,2)")
     assert _class_of(a16, "C(2,2,1,7)") == _class_of(a16, "C(2,2,2,6)")
@@ -92,14 +93,14 @@ def test_published_isomorphisms() -> None:
     assert _class_of(a5, "C(3,2,1,1)") == _class_of(a5, "C(2,3,1,1)")
     assert _class_of(a5, "C(4,1,1,1)") == _class_of(a5, "C(1,4,1,1)")
     assert _class_of(a5, "C(3,2,1,1)") != _class_of(a5, "C(4,1,1,1)")
-    # theory.md §6 table: (A, cyc, alpha = beta) = (12, 4, 3) has two classes.
+    # docs/theory/synthesis.md table: (A, cyc, alpha = beta) = (12, 4, 3) has two classes.
     a12 = classified(12)
     assert _class_of(a12, "C(3,3,1,3)") == _class_of(a12, "C(3,3,3,1)")
     assert _class_of(a12, "C(3,3,1,3)") != _class_of(a12, "C(3,3,2,2)")
 
 
 def test_invariants_of_the_running_example() -> None:
-    # theory.md §11 table, rows C(4,2,2,3) and C(2,4,3,2) [VERIFIED].
+    # docs/theory/check-values.md table, rows C(4,2,2,3) and C(2,4,3,2) [VERIFIED].
     result = classified(16)
     entry = next(c for c in result.classes if ParameterSet(4, 2, 2, 3) in c.members)
     assert (entry.loop, entry.states, entry.state_arcs) == (5, 40, 64)

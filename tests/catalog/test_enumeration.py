@@ -91,7 +91,7 @@ def test_count_is_the_divisor_convolution_computed_by_sympy(area: int) -> None:
 
 
 def test_cumulative_totals_from_design_notes() -> None:
-    # design.md §3, measured facts: 25,331 with area <= 60, 90,253 <= 100, 486,508 <= 200.
+    # docs/architecture.md, measured facts: 25,331 with area <= 60, 90,253 <= 100, 486,508 <= 200.
     assert cumulative_parameter_set_count(60) == 25_331
     assert cumulative_parameter_set_count(100) == 90_253
     assert cumulative_parameter_set_count(200) == 486_508
@@ -113,7 +113,7 @@ def test_enumeration_equals_brute_force_in_lexicographic_order(area: int) -> Non
 def test_parameter_sets_are_valid_and_of_the_area() -> None:
     sets = list(iter_parameter_sets(16))
     assert all(isinstance(p, ParameterSet) and p.area == 16 for p in sets)
-    assert ParameterSet(4, 2, 2, 3) in sets  # theory.md §2.3 example, A = 16
+    assert ParameterSet(4, 2, 2, 3) in sets  # docs/theory/equivalence.md example, A = 16
     assert sets == sorted(set(sets))
 
 

@@ -11,7 +11,8 @@ from zoo.core.params import ParameterSet
 from zoo.core.rings import RingDesign
 from zoo.errors import FormatError
 
-# The shipped seeds are ring designs (theory.md §9 mapping, verified in tests/core/test_rings.py by
+# The shipped seeds are ring designs (docs/theory/ring-designs.md mapping, verified in
+# tests/core/test_rings.py by
 # state-graph isomorphism): (items, free slots, items tracked, slots tracked) per name.
 SHIPPED = {
     "pipeline-ring-3-frames-2-slots": (3, 2, False, False),

@@ -13,7 +13,7 @@ from typing import Any
 import pytest
 from sqlalchemy import select, text, update
 
-from zoo.catalog.build import write_area
+from zoo.catalog.build import build_catalog, write_area
 from zoo.catalog.classify import classify_area
 from zoo.catalog.enumeration import iter_parameter_sets, parameter_set_count
 from zoo.catalog.service import Catalog, lookup_class_id
@@ -56,7 +56,7 @@ def dump(location: str) -> dict[str, list[tuple[Any, ...]]]:
 def _build(path: Path, max_area: int, jobs: int = 1) -> str:
     location = str(path)
     with Catalog.open(location, create=True) as catalog:
-        catalog.build(max_area, jobs=jobs)
+        build_catalog(catalog, max_area, jobs=jobs)
     return location
 
 
@@ -92,7 +92,7 @@ def test_counts_per_area_match_enumeration_and_classification(fresh30: str) -> N
 
 
 def test_stored_typed_nets_per_area_are_sigma_minus_tau(fresh30: str) -> None:
-    # theory.md §2.4: sigma(A) - tau(A) typed nets (distinct lattices) per area.
+    # docs/theory/lattice-key.md: sigma(A) - tau(A) typed nets (distinct lattices) per area.
     from sympy import divisor_count, divisor_sigma
 
     with Catalog.open(fresh30) as catalog, catalog.engine.connect() as connection:
@@ -138,7 +138,7 @@ def test_extending_a_build_changes_no_identifier(
 ) -> None:
     location = _build(tmp_path / "grown.sqlite3", 20)
     with Catalog.open(location) as catalog:
-        report = catalog.build(30, jobs=2)
+        report = build_catalog(catalog, 30, jobs=2)
     assert report.added == tuple(range(21, 31))
     assert dump(location) == fresh30_rows
 
@@ -147,15 +147,16 @@ def test_running_the_same_build_again_does_nothing(
     fresh30: str, fresh30_rows: dict[str, list[tuple[Any, ...]]]
 ) -> None:
     with Catalog.open(fresh30) as catalog:
-        report = catalog.build(30)
+        report = build_catalog(catalog, 30)
     assert report.added == () and report.complete_to == 30
     assert dump(fresh30) == fresh30_rows
 
 
 _BUILD_SCRIPT = (
     "import sys\n"
+    "from zoo.catalog.build import build_catalog\n"
     "from zoo.catalog.service import Catalog\n"
-    "Catalog.open(sys.argv[1], create=True).build(int(sys.argv[2]), jobs=1)\n"
+    "build_catalog(Catalog.open(sys.argv[1], create=True), int(sys.argv[2]), jobs=1)\n"
 )
 
 
@@ -194,7 +195,7 @@ def test_killed_build_leaves_a_consistent_catalog_and_resumes(
         kept = catalog.complete_to()
         assert kept >= reached
         assert catalog.complete_areas() == list(range(1, kept + 1))  # nothing half-stored
-        report = catalog.build(30)
+        report = build_catalog(catalog, 30)
     assert report.added == tuple(range(kept + 1, 31))
     rows = dump(location)
     if kept > 30:  # the killed build got further than 30 before the kill landed
@@ -232,8 +233,8 @@ def test_reader_queries_while_a_build_writes(tmp_path: Path, fresh30: str) -> No
 
 def test_get_by_identifier_label_member_and_fingerprint(fresh30: str) -> None:
     with Catalog.open(fresh30) as catalog:
-        entry = catalog.get("C(4,2,2,3)")  # theory.md §2.3 running example, A = 16
-        assert ParameterSet(2, 4, 3, 2) in entry.members  # its swap, theory.md §5.1
+        entry = catalog.get("C(4,2,2,3)")  # docs/theory/equivalence.md running example, A = 16
+        assert ParameterSet(2, 4, 3, 2) in entry.members  # its swap, docs/theory/isomorphism.md
         assert catalog.get(entry.id) == entry
         assert catalog.get(entry.label) == entry
         assert catalog.get(entry.id.lower()) == entry
@@ -242,7 +243,7 @@ def test_get_by_identifier_label_member_and_fingerprint(fresh30: str) -> None:
         frame = catalog.frame(entry.frame_id)
         assert entry.id in frame.class_ids
         exceptional = catalog.get("C(2,2,2,2)")
-        assert exceptional.label == "C(2,2,1,3)"  # theory.md §5.1 exceptional family
+        assert exceptional.label == "C(2,2,1,3)"  # docs/theory/isomorphism.md exceptional family
         assert len(exceptional.readings) == 2
         assert catalog.class_for_params(parse_params("C(20,1,1,11)")) is None  # area 31
         with pytest.raises(NotInCatalog, match="area 41, beyond the catalog"):
@@ -306,7 +307,8 @@ def test_big_numbers_are_exact_and_range_queries_compare_them(tmp_path: Path) ->
     location = _build(tmp_path / "big.sqlite3", 4)
     with Catalog.open(location) as catalog:
         # Store area 70 alone (an area is independent of the others): C(35,35,1,1) has
-        # C(70,35) = 112186277816662845432 > 2^63 reachable states (theory.md §10 formula).
+        # C(70,35) = 112186277816662845432 > 2^63 reachable states (docs/theory/state-counts.md
+        # formula).
         write_area(catalog, classify_area(70), [])
         assert catalog.complete_to() == 4  # areas 5..69 are missing
         entry = catalog.get("C(35,35,1,1)")
@@ -328,7 +330,7 @@ def test_a_catalog_of_another_encoding_is_not_mixed(tmp_path: Path) -> None:
                 update(CatalogInfo).where(CatalogInfo.key == "encoding").values(value="v0")
             )
         with pytest.raises(CatalogError, match="encoding v0"):
-            catalog.build(5)
+            build_catalog(catalog, 5)
         assert catalog.complete_to() == 3
         with catalog.engine.connect() as connection:
             assert (
@@ -348,7 +350,7 @@ def test_the_same_build_on_every_backend(
     db_url: str, fresh12_rows: dict[str, list[tuple[Any, ...]]]
 ) -> None:
     with Catalog.open(db_url, create=True) as catalog:
-        catalog.build(12, jobs=2)
+        build_catalog(catalog, 12, jobs=2)
     rows = dump(db_url)
     assert rows == fresh12_rows
 
@@ -357,7 +359,7 @@ def test_iter_entries_streams_every_class_by_area_then_rank(fresh30: str) -> Non
     with Catalog.open(fresh30) as catalog:
         classes = {s.area: s.classes for s in catalog.stats()}
         every = list(catalog.iter_entries())
-        # design.md §2: ranks 1..n per area, areas ascending.
+        # docs/citing.md: ranks 1..n per area, areas ascending.
         expected = [f"CY{a}-{r}" for a in sorted(classes) for r in range(1, classes[a] + 1)]
         assert [e.id for e in every] == expected
         assert [e.id for e in catalog.iter_entries(batch_size=7)] == expected  # across batches
@@ -426,7 +428,7 @@ def test_a_writer_locked_out_too_long_gets_one_line(
     try:
         with Catalog.open(str(location)) as catalog:
             with pytest.raises(database.CatalogBusy) as info:
-                catalog.build(5)
+                build_catalog(catalog, 5)
     finally:
         holder.execute("ROLLBACK")
         holder.close()
@@ -486,7 +488,7 @@ def test_ensure_catalog_resumes_only_its_own_interrupted_build(
     # Nor is one whose latest build, to another bound, was interrupted.
     with Catalog.open(chosen) as catalog:
         with pytest.raises(KeyboardInterrupt):
-            catalog.build(13, progress=_StopAfter(11))
+            build_catalog(catalog, 13, progress=_StopAfter(11))
     catalog, report = ensure_catalog(chosen, jobs=1)
     with catalog:
         assert report is None and catalog.complete_to() == 11
@@ -506,10 +508,10 @@ def test_find_columns_come_back_typed_for_machine_formats(fresh30: str) -> None:
     mixed = 0
     for entry, values in zip(result.entries, result.values, strict=True):
         members = [parse_params(m) for m in entry.as_dict()["members"]]  # type: ignore[union-attr]
-        # processes = gcd(beta, delta) and regular = (beta | delta), theory.md §7
+        # processes = gcd(beta, delta) and regular = (beta | delta), docs/theory/processes.md
         assert values["processes"] == sorted({math.gcd(p.beta, p.delta) for p in members})
         assert values["regular"] == sorted({p.delta % p.beta == 0 for p in members})
-        # slowness (alpha - beta) / (alpha + beta), theory.md §10, written num/den
+        # slowness (alpha - beta) / (alpha + beta), docs/theory/state-counts.md, written num/den
         slowness = sorted({Fraction(p.alpha - p.beta, p.alpha + p.beta) for p in members})
         assert values["slowness"] == [f"{s.numerator}/{s.denominator}" for s in slowness]
         assert values["gamma"] == sorted({p.gamma for p in members})

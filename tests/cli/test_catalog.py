@@ -50,7 +50,8 @@ def test_find_json_objects_have_id_label_area_members(db: str) -> None:
     objects = json.loads(result.stdout)
     assert [o["id"] for o in objects] == [f"CY8-{r}" for r in range(1, len(objects) + 1)]
     exceptional = next(o for o in objects if "C(2,2,2,2)" in o["members"])
-    assert exceptional["label"] == "C(2,2,1,3)" and exceptional["area"] == 8  # theory.md §5.1
+    # docs/theory/isomorphism.md
+    assert exceptional["label"] == "C(2,2,1,3)" and exceptional["area"] == 8
     assert exceptional["members"] == ["C(2,2,1,3)", "C(2,2,2,2)", "C(2,2,3,1)"]
     assert "complete up to area 16" in result.stderr
 
@@ -94,7 +95,8 @@ def test_find_count_prints_the_number_alone(db: str) -> None:
     result = invoke("find", "area <= 3", "--db", db, "--count")
     assert result.exit_code == 0
     # Area 2: C(1,1,1,1). Area 3: {C(1,1,1,2), C(1,1,2,1)} (one reading, a delta-step apart)
-    # and {C(1,2,1,1), C(2,1,1,1)} (a swap pair), theory.md §5.1-5.2.
+    # and {C(1,2,1,1), C(2,1,1,1)} (a swap pair), docs/theory/isomorphism.md,
+    # docs/theory/normal-forms.md.
     assert result.stdout == "3\n"
     assert result.stderr == "The catalog is complete up to area 16.\n"
 
@@ -156,7 +158,7 @@ def test_find_builds_the_default_catalog_when_there_is_none(
     result = invoke("find", "processes = 3 and area < 100", "--count")
     assert result.exit_code == 0, result.output
     # processes = gcd(beta, delta) = 3 needs 3 | beta and 3 | delta: in area <= 6 only
-    # C(1,3,1,3) (with its swap C(3,1,3,1)), theory.md §7.
+    # C(1,3,1,3) (with its swap C(3,1,3,1)), docs/theory/processes.md.
     assert result.stdout == "1\n"
     assert "No catalog at" in result.stderr and "building areas 1..6" in result.stderr
     assert "Warning: the query reaches area 99" in result.stderr
@@ -172,7 +174,8 @@ def test_show_class_entry_json(db: str) -> None:
     assert entry["id"] == "CY8-8" and entry["label"] == "C(2,2,1,3)"
     assert entry["members"] == ["C(2,2,1,3)", "C(2,2,2,2)", "C(2,2,3,1)"]
     assert [r["label"] for r in entry["readings"]] == ["C(2,2,1,3)", "C(2,2,2,2)"]
-    assert (entry["loop"], entry["states"], entry["state_arcs"]) == (4, 12, 16)  # theory.md §11
+    # docs/theory/check-values.md
+    assert (entry["loop"], entry["states"], entry["state_arcs"]) == (4, 12, 16)
     assert entry["frame"]["id"] == entry["frame_id"]
     assert entry["frame"]["other_classes"]
     assert entry["seeds"][0]["name"] == "factory-loop-2-tracked-carts-2-bays"
@@ -379,7 +382,8 @@ def test_interrupted_default_build_resumes_on_the_next_find(tmp_path: Path) -> N
     assert "The catalog is complete up to area 40." in second.stderr
     with Catalog.open(str(location)) as catalog:
         assert catalog.complete_to() == 40
-        # processes = gcd(beta, delta) (theory.md §7): count those classes of area < 41 directly
+        # processes = gcd(beta, delta) (docs/theory/processes.md): count those classes of area < 41
+        # directly
         # from the stored classes, which an uninterrupted build would have given
         expected = catalog.count("processes = 3 and area <= 40")
     assert second.stdout == f"{expected}\n"

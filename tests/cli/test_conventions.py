@@ -88,7 +88,7 @@ def test_not_found_has_its_own_status(db: str) -> None:
 
 
 def test_limit_exceeded_has_its_own_status() -> None:
-    # C(12,4,1,1) has 1,820 reachable states (theory.md §11 [VERIFIED]).
+    # C(12,4,1,1) has 1,820 reachable states (docs/theory/check-values.md [VERIFIED]).
     result = subprocess.run(
         [str(ZOO), "explore", "12,4,1,1", "--state-limit", "100"],
         capture_output=True,

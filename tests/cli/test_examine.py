@@ -1,6 +1,7 @@
 """``zoo show`` and ``zoo compare``: exact output for errors, the JSON interface, help texts.
 
-Values are checked against theory.md (§2.3, §5.1, §10, §11); error messages are pinned in full
+Values are checked against docs/theory/equivalence.md, docs/theory/isomorphism.md,
+docs/theory/state-counts.md, docs/theory/check-values.md; error messages are pinned in full
 because a researcher reads them. Most tests use typer's runner; a few run the installed
 console script, which is what users run, to prove that errors end in one line and status 1.
 """
@@ -85,7 +86,7 @@ def test_help_mentions_options(command: str) -> None:
 def test_show_json_c4223() -> None:
     report = show_json("4,2,2,3")
     assert REQUIRED_SHOW_KEYS <= set(report)
-    # theory.md §11 table row C(4,2,2,3) [VERIFIED]
+    # docs/theory/check-values.md table row C(4,2,2,3) [VERIFIED]
     assert report["params"] == {"alpha": 4, "beta": 2, "gamma": 2, "delta": 3}
     assert report["label"] == "C(4,2,2,3)"
     assert report["area"] == 16 and report["places"] == 32 and report["tokens"] == 6
@@ -95,7 +96,7 @@ def test_show_json_c4223() -> None:
     assert report["processes"] == 1 and report["regular"] is False
     assert report["states"] == 40 and report["state_arcs"] == 64
     assert report["enabled"] == 2 and report["semi_enabled"] == 2
-    # theory.md §3.1 example
+    # docs/theory/initial-marking.md example
     assert report["enabled_transitions"] == ["t_1_0", "t_3_-1"]
     assert report["semi_enabled_transitions"] == ["t_2_0", "t_4_-1"]
     assert report["slowness"] == "1/3" and report["slowness_float"] == pytest.approx(1 / 3)
@@ -106,7 +107,8 @@ def test_show_json_c4223() -> None:
     assert report["normal_form_alpha_gamma"] == "C(2,5,2,3)"
     assert report["swap"] == "C(2,4,3,2)"
     assert report["iteration"] == 1
-    # theory.md §10: the typed system has gcd(alpha, beta) = 2 automorphisms, the typed net A
+    # docs/theory/state-counts.md: the typed system has gcd(alpha, beta) = 2 automorphisms, the
+    # typed net A
     assert report["automorphisms"] == 2 and report["net_automorphisms"] == 16
     assert report["fingerprint"].startswith("v1:") and len(report["fingerprint"]) == 67
     assert report["net_fingerprint"].startswith("v1:")
@@ -144,7 +146,8 @@ def test_swap_gives_the_same_class_level_values() -> None:
 
 
 def test_show_json_big_integers_are_exact() -> None:
-    # C(100,100,1,1): |RG| = C(200,100) (theory.md §10), about 9e58, far beyond 64 bits.
+    # C(100,100,1,1): |RG| = C(200,100) (docs/theory/state-counts.md), about 9e58, far beyond 64
+    # bits.
     result = runner.invoke(app, ["show", "100,100,1,1", "--format", "json"])
     assert result.exit_code == 0
     assert f'"states": {comb(200, 100)},' in result.stdout
@@ -189,7 +192,7 @@ def test_show_table() -> None:
         line = next(line for line in lines if line.startswith(f"│ {name} "))
         return [cell.strip() for cell in line.strip("│").split("│")]
 
-    # theory.md §11 row C(1,10,1,5): cyc = 3 although cyc_1 = 6; 15 states; w = -9/11
+    # docs/theory/check-values.md row C(1,10,1,5): cyc = 3 although cyc_1 = 6; 15 states; w = -9/11
     assert row("loop (shortest cycle)") == [
         "loop (shortest cycle)",
         "3 (vector (3,0), 2 tokens)",
@@ -198,7 +201,8 @@ def test_show_table() -> None:
     assert row("reachable states")[1] == "15"
     assert row("slowness")[1] == "-9/11"
     assert row("forward cycles")[1] == "5 × 3 (2 tokens each)"
-    # the representative of level 1 in the parallelogram: L(1,-9) = 10 - 9 = 1 (theory.md §3.1)
+    # the representative of level 1 in the parallelogram: L(1,-9) = 10 - 9 = 1
+    # (docs/theory/initial-marking.md)
     assert row("enabled at M0")[1] == "1: t_1_-9"
 
 
@@ -308,14 +312,15 @@ def test_show_with_catalog(tmp_path: Path) -> None:
     report = show_json("4,2,2,3", "--db", db)
     class_id = report["id"]
     assert class_id is not None and class_id.startswith("CY16-")
-    # every member of the class resolves to the same identifier (theory.md §5.1 swap)
+    # every member of the class resolves to the same identifier (docs/theory/isomorphism.md swap)
     assert show_json("2,4,3,2", "--db", db)["id"] == class_id
     entry = runner.invoke(app, ["show", class_id, "--db", db])
     assert entry.exit_code == 0, entry.output
     assert class_id in entry.stdout
     # a parameter set beyond the catalog's areas simply has no identifier
     assert show_json("4,2,2,5", "--db", db)["id"] is None
-    # explore resolves an identifier to its label; the class has 40 states (theory.md §11)
+    # explore resolves an identifier to its label; the class has 40 states
+    # (docs/theory/check-values.md)
     explored = explore_json(class_id, "--db", db)
     assert explored["label"] == entry_label(class_id, db) and explored["states"] == 40
 
@@ -340,12 +345,13 @@ def compare_json(first: str, second: str) -> dict:  # type: ignore[type-arg]
     ("first", "second", "reading", "same_class", "frame"),
     [
         ("4,2,2,3", "4,2,2,3", True, True, True),
-        ("4,2,2,3", "4,2,6,1", True, True, True),  # delta-step keeps net and M0, theory.md §5.2
-        ("4,2,2,3", "2,4,3,2", False, True, True),  # swap, theory.md §5.1
+        # delta-step keeps net and M0, docs/theory/normal-forms.md
+        ("4,2,2,3", "4,2,6,1", True, True, True),
+        ("4,2,2,3", "2,4,3,2", False, True, True),  # swap, docs/theory/isomorphism.md
         ("4,2,2,3", "10,1,6,1", False, False, True),  # NF_betadelta: same net, other marking
-        ("2,2,1,3", "2,2,2,2", False, True, True),  # exceptional family, theory.md §5.1
+        ("2,2,1,3", "2,2,2,2", False, True, True),  # exceptional family, docs/theory/isomorphism.md
         ("2,2,1,5", "2,2,2,4", False, True, True),
-        ("1,5,1,3", "2,2,2,2", False, False, True),  # same net only, theory.md §5.1
+        ("1,5,1,3", "2,2,2,2", False, False, True),  # same net only, docs/theory/isomorphism.md
         ("3,2,1,1", "4,1,1,1", False, False, True),  # same net, different systems, §11
         ("3,3,1,3", "3,3,2,2", False, False, False),  # same |RG|, not isomorphic, §10
         ("4,2,2,3", "1,1,1,1", False, False, False),
@@ -461,11 +467,11 @@ def explore_json(*args: str) -> dict:  # type: ignore[type-arg]
 def test_explore_json_c4223() -> None:
     report = explore_json("4,2,2,3")
     assert set(report) == EXPLORE_KEYS  # docs/explore.md lists these keys
-    # theory.md §11 table row C(4,2,2,3) [VERIFIED]: 40 states, 64 edges
+    # docs/theory/check-values.md table row C(4,2,2,3) [VERIFIED]: 40 states, 64 edges
     assert (report["states"], report["arcs"]) == (40, 64)
     assert (report["formula_states"], report["formula_arcs"]) == (40, 64)
     assert report["states_agree"] is True and report["arcs_agree"] is True
-    # theory.md §3.2: cycloid systems are live, 1-safe and reversible [VERIFIED]
+    # docs/theory/cycles-and-tokens.md: cycloid systems are live, 1-safe and reversible [VERIFIED]
     assert (report["live"], report["one_safe"], report["reversible"]) == (True, True, True)
     assert report["dead_transitions"] == [] and report["bound"] == 1
     assert report["params"] == {"alpha": 4, "beta": 2, "gamma": 2, "delta": 3}
@@ -478,7 +484,7 @@ def test_explore_json_c4223() -> None:
 
 @pytest.mark.parametrize(
     ("params", "states", "arcs"),
-    [  # theory.md §11 table, RG states and edges [VERIFIED by explicit BFS]
+    [  # docs/theory/check-values.md table, RG states and edges [VERIFIED by explicit BFS]
         ("3,3,1,3", 40, 72),
         ("2,5,1,5", 45, 75),
         ("1,10,1,5", 15, 15),
@@ -494,7 +500,7 @@ def test_explore_matches_the_published_table(params: str, states: int, arcs: int
 
 
 def test_explore_state_limit_is_exact() -> None:
-    # C(12,4,1,1) has exactly 1,820 reachable states (theory.md §11 [VERIFIED]).
+    # C(12,4,1,1) has exactly 1,820 reachable states (docs/theory/check-values.md [VERIFIED]).
     assert explore_json("12,4,1,1", "--state-limit", "1820")["states"] == 1820
     result = runner.invoke(app, ["explore", "12,4,1,1", "--state-limit", "1819"])
     assert (result.exit_code, result.stdout) == (LIMIT_EXCEEDED, "")
@@ -511,7 +517,7 @@ def test_explore_limit_from_the_console_script() -> None:
         text=True,
         check=False,
     )
-    # C(100,100,1,1): |RG| = C(200,100) ≈ 9.05e58 (theory.md §10)
+    # C(100,100,1,1): |RG| = C(200,100) ≈ 9.05e58 (docs/theory/state-counts.md)
     assert (result.returncode, result.stdout) == (LIMIT_EXCEEDED, "")
     assert result.stderr == (
         "Error: reachability graph of C(100,100,1,1) has more than 1,000 states; raise "
@@ -530,7 +536,7 @@ def test_explore_table() -> None:
         line = next(line for line in lines if line.startswith(f"│ {name} "))
         return [cell.strip() for cell in line.strip("│").split("│")]
 
-    # theory.md §11 row C(2,2,1,3): 12 states, 16 edges [VERIFIED]
+    # docs/theory/check-values.md row C(2,2,1,3): 12 states, 16 edges [VERIFIED]
     assert row("reachable states") == ["reachable states", "12", "formula 12: agree"]
     assert row("reachability arcs") == ["reachability arcs", "16", "formula 16: agree"]
     assert row("live")[1] == row("1-safe")[1] == row("reversible")[1] == "yes"
@@ -608,7 +614,8 @@ def test_state_limit_defaults() -> None:
 
 
 def test_ring_simulation_takes_the_state_limit() -> None:
-    # theory.md §9: 2 anonymous items, 3 slots is C(3,2,1,1), 10 states and 15 arcs (§11).
+    # docs/theory/ring-designs.md: 2 anonymous items, 3 slots is C(3,2,1,1), 10 states and 15 arcs
+    # (§11).
     ok = runner.invoke(
         app, ["ring", "-c", "2", "-g", "3", "--simulate", "--state-limit", "10", "--format", "json"]
     )
@@ -809,7 +816,7 @@ def test_show_table_keeps_fingerprints_whole_and_whole_fractions_plain() -> None
     lines = result.stdout.splitlines()
     assert f"fingerprint (system): {report['fingerprint']}" in lines
     assert f"fingerprint (net): {report['net_fingerprint']}" in lines
-    # cycle time A/min(alpha, beta) = 16/2 = 8 (theory.md §10); JSON keeps num/den
+    # cycle time A/min(alpha, beta) = 16/2 = 8 (docs/theory/state-counts.md); JSON keeps num/den
     assert report["cycle_time"] == "8/1"
     cycle = next(line for line in lines if line.startswith("│ cycle time"))
     assert cycle.split("│")[2].strip() == "8"
@@ -825,7 +832,8 @@ def test_catalog_entry_table_prints_whole_fractions_and_whole_fingerprints(
     table = runner.invoke(app, ["show", class_id, "--db", area16_catalog], env={"COLUMNS": "60"})
     assert table.exit_code == 0, table.output
     lines = table.stdout.splitlines()
-    # C(1,1,1,15): cycle time A/min(alpha, beta) = 16/1 (theory.md §10), slowness 0/2 = 0
+    # C(1,1,1,15): cycle time A/min(alpha, beta) = 16/1 (docs/theory/state-counts.md), slowness 0/2
+    # = 0
     cycle = next(line for line in lines if line.startswith("cycle time"))
     assert cycle.split()[-1] == "16"
     assert "16/1" not in table.stdout
@@ -839,7 +847,7 @@ def test_exploration_report_lives_in_the_core() -> None:
 
     assert not hasattr(zoo.cli.examine, "exploration_report")  # the CLI only prints it
     report = exploration_report(ParameterSet(4, 2, 2, 3), 1000)
-    # theory.md §11: C(4,2,2,3) has 40 reachable states and 64 arcs
+    # docs/theory/check-values.md: C(4,2,2,3) has 40 reachable states and 64 arcs
     assert (report["states"], report["arcs"]) == (40, 64)
     printed = explore_json("4,2,2,3", "--state-limit", "1000")
     assert {k: v for k, v in printed.items() if k != "seconds"} == {

@@ -1,6 +1,9 @@
-"""Cycloid algebra against theory.md §2, §5, §8, §11, sympy, nauty and a brute-force lattice.
+"""Cycloid algebra against docs/theory/folding.md, docs/theory/isomorphism.md,
+docs/theory/normal-forms.md, docs/theory/iterations.md, docs/theory/check-values.md, sympy, nauty
+and a brute-force lattice.
 
-The brute-force helpers below use only the definition of the folding (theory.md §2.1: x and y
+The brute-force helpers below use only the definition of the folding (docs/theory/folding.md: x and
+y
 fold together iff y - x = m*P + n*R for integers m, n), never the closed tests under check.
 """
 
@@ -55,14 +58,14 @@ def parameter_sets_of_area(area: int) -> list[ParameterSet]:
 
 
 def test_area_and_matrix() -> None:
-    assert algebra.area(C4223) == 16  # theory.md §2.3 example, A = 16
-    assert algebra.cycloid_matrix(C4223) == ((4, 2), (-2, 3))  # theory.md §2.1
+    assert algebra.area(C4223) == 16  # docs/theory/equivalence.md example, A = 16
+    assert algebra.cycloid_matrix(C4223) == ((4, 2), (-2, 3))  # docs/theory/folding.md
     det = sympy.Matrix(algebra.cycloid_matrix(C4223)).det()
-    assert det == 16  # A = det of the cycloid matrix, theory.md §2.1
+    assert det == 16  # A = det of the cycloid matrix, docs/theory/folding.md
 
 
 def test_step_counts_worked_example() -> None:
-    # theory.md §2.3 example [VERIFIED]
+    # docs/theory/equivalence.md example [VERIFIED]
     assert algebra.step_counts(C4223, (6, 1)) == (1, 1)
     assert algebra.step_counts(C4223, (16, 0)) == (3, 2)
     assert algebra.step_counts(C4223, (1, 0)) == (Fraction(3, 16), Fraction(2, 16))
@@ -72,7 +75,7 @@ def test_step_counts_worked_example() -> None:
 
 
 def test_representatives_of_c4223() -> None:
-    # theory.md §2.3: the 16 representatives in the half-open parallelogram [VERIFIED]
+    # docs/theory/equivalence.md: the 16 representatives in the half-open parallelogram [VERIFIED]
     expected = [
         (0, 0),
         (1, 0),
@@ -93,15 +96,17 @@ def test_representatives_of_c4223() -> None:
     ]
     assert algebra.parallelogram_points(C4223) == expected
     assert all(algebra.representative(C4223, x) == x for x in expected)
-    assert algebra.representative(C4223, (6, 1)) == (0, 0)  # t_Q = t_{0,0}, theory.md §2.3
+    # t_Q = t_{0,0}, docs/theory/equivalence.md
+    assert algebra.representative(C4223, (6, 1)) == (0, 0)
 
 
 @pytest.mark.parametrize("p", tuples(4), ids=str)
 def test_equivalence_and_representative_against_definition(p: ParameterSet) -> None:
-    # theory.md §2.3 ([LA24] Thm 4 via review): the integer test equals the folding definition,
+    # docs/theory/equivalence.md ([LA24] Thm 4 via review): the integer test equals the folding
+    # definition,
     # and rep(x) is the unique parallelogram point of x's class.
     points = algebra.parallelogram_points(p)
-    assert len(points) == p.area  # exactly A classes, theory.md §2.2
+    assert len(points) == p.area  # exactly A classes, docs/theory/folding.md
     window = [(x, y) for x in range(-6, 7) for y in range(-6, 7)]
     for x in window:
         assert algebra.are_equivalent(p, (0, 0), x) == in_lattice_by_definition(p, x)
@@ -145,11 +150,12 @@ def test_points_at_level() -> None:
 def test_representative_properties(p: ParameterSet, xi: int, eta: int, m: int, n: int) -> None:
     x = (xi, eta)
     shifted = (xi + m * p.alpha + n * p.gamma, eta - m * p.beta + n * p.delta)
-    assert algebra.are_equivalent(p, x, shifted)  # theory.md §2.1 folding
+    assert algebra.are_equivalent(p, x, shifted)  # docs/theory/folding.md folding
     rep = algebra.representative(p, x)
     assert rep == algebra.representative(p, shifted)
     s, u = algebra.step_counts(p, rep)
-    assert 0 <= s < 1 and 0 <= u < 1  # inside the half-open parallelogram, theory.md §2.3
+    # inside the half-open parallelogram, docs/theory/equivalence.md
+    assert 0 <= s < 1 and 0 <= u < 1
     key = algebra.lattice_key(p)
     assert key.contains((shifted[0] - xi, shifted[1] - eta))
     assert key.reduce(x) == key.reduce(shifted)
@@ -165,7 +171,7 @@ def test_lattice_key_example() -> None:
 
 @pytest.mark.parametrize("limit", [6])
 def test_lattice_key_is_a_hermite_basis(limit: int) -> None:
-    # theory.md §2.4: L has the basis {(A/g, 0), (r, g)}, 0 < r < A/g.
+    # docs/theory/lattice-key.md: L has the basis {(A/g, 0), (r, g)}, 0 < r < A/g.
     for p in tuples(limit):
         key = algebra.lattice_key(p)
         assert key.g == sympy.gcd(p.beta, p.delta)
@@ -176,7 +182,7 @@ def test_lattice_key_is_a_hermite_basis(limit: int) -> None:
 
 
 def test_lattice_key_decides_equal_lattices() -> None:
-    # theory.md §2.4/§5.1: (A, g, r) is a complete invariant of the folding lattice.
+    # docs/theory/lattice-key.md/§5.1: (A, g, r) is a complete invariant of the folding lattice.
     for area in range(2, 17):
         sets = parameter_sets_of_area(area)
         for p, q in itertools.combinations(sets, 2):
@@ -185,7 +191,7 @@ def test_lattice_key_decides_equal_lattices() -> None:
 
 
 def test_typed_classes_per_area_are_sigma_minus_tau() -> None:
-    # theory.md §2.4: sigma(A) - tau(A) type-preserving net classes with A transitions
+    # docs/theory/lattice-key.md: sigma(A) - tau(A) type-preserving net classes with A transitions
     # [VERIFIED A <= 24]
     for area in range(2, 25):
         keys = {algebra.lattice_key(p) for p in parameter_sets_of_area(area)}
@@ -195,7 +201,7 @@ def test_typed_classes_per_area_are_sigma_minus_tau() -> None:
 
 @pytest.mark.parametrize(
     ("p", "snf"),
-    [  # theory.md §11 table, SNF column [VERIFIED]
+    [  # docs/theory/check-values.md table, SNF column [VERIFIED]
         (C(1, 1, 1, 1), (1, 2)),
         (C(2, 2, 2, 2), (2, 4)),
         (C(4, 2, 4, 4), (2, 12)),
@@ -220,7 +226,8 @@ def test_transition_group_against_sympy() -> None:
 
 # --- §5: swap, normal forms, classification ---------------------------------------------------
 
-TABLE_NORMAL_FORMS = [  # theory.md §11 table, columns NF_betadelta and NF_alphagamma [VERIFIED]
+# docs/theory/check-values.md table, columns NF_betadelta and NF_alphagamma [VERIFIED]
+TABLE_NORMAL_FORMS = [
     ((1, 1, 1, 1), (1, 1, 1, 1), (1, 1, 1, 1)),
     ((2, 1, 1, 1), (2, 1, 1, 1), (1, 2, 1, 1)),
     ((1, 2, 1, 1), (2, 1, 1, 1), (1, 2, 1, 1)),
@@ -263,7 +270,7 @@ def test_normal_forms_table(
 
 
 def reduce_beta_delta(p: ParameterSet) -> ParameterSet:
-    """theory.md §5.2: beta- and delta-steps (subtractive Euclid) until beta = delta."""
+    """Beta- and delta-steps (subtractive Euclid) until beta = delta (theory: normal forms)."""
     a, b, c, d = p.as_tuple()
     while b != d:
         if d > b:
@@ -274,7 +281,7 @@ def reduce_beta_delta(p: ParameterSet) -> ParameterSet:
 
 
 def reduce_alpha_gamma(p: ParameterSet) -> ParameterSet:
-    """theory.md §5.2: alpha- and gamma-steps until alpha = gamma."""
+    """docs/theory/normal-forms.md: alpha- and gamma-steps until alpha = gamma."""
     a, b, c, d = p.as_tuple()
     while a != c:
         if c > a:
@@ -285,7 +292,7 @@ def reduce_alpha_gamma(p: ParameterSet) -> ParameterSet:
 
 
 def test_reduction_chain_example() -> None:
-    # theory.md §5.2 worked chain:
+    # docs/theory/normal-forms.md worked chain:
     # C(4,2,2,3) -> delta-step -> C(4,2,6,1) -> beta-step -> C(10,1,6,1)
     assert algebra.lattice_key(C(4, 2, 6, 1)) == algebra.lattice_key(C4223)
     assert reduce_beta_delta(C4223) == C(10, 1, 6, 1)
@@ -298,13 +305,13 @@ def test_normal_forms_are_the_ends_of_the_reductions() -> None:
         nf_ag = algebra.normal_form_alpha_gamma(p)
         assert nf_bd == reduce_beta_delta(p), p
         assert nf_ag == reduce_alpha_gamma(p), p
-        # shear mappings keep the net: the same lattice (theory.md §5.2)
+        # shear mappings keep the net: the same lattice (docs/theory/normal-forms.md)
         assert algebra.lattice_key(nf_bd) == algebra.lattice_key(p)
         assert algebra.lattice_key(nf_ag) == algebra.lattice_key(p)
 
 
 def test_swap() -> None:
-    assert algebra.swap(C4223) == C(2, 4, 3, 2)  # theory.md §5.1 example
+    assert algebra.swap(C4223) == C(2, 4, 3, 2)  # docs/theory/isomorphism.md example
     assert algebra.class_key(C4223) == algebra.class_key(C(2, 4, 3, 2))
     assert algebra.frame_key(C4223) == algebra.frame_key(C(2, 4, 3, 2))
     assert algebra.reading_key(C4223) != algebra.reading_key(C(2, 4, 3, 2))
@@ -312,7 +319,8 @@ def test_swap() -> None:
 
 @given(st.builds(C, *(st.integers(1, 60) for _ in range(4))))
 def test_swap_invariance_of_class_level_keys(p: ParameterSet) -> None:
-    # theory.md §5.1: C(alpha,beta,gamma,delta) and C(beta,alpha,delta,gamma) are one class.
+    # docs/theory/isomorphism.md: C(alpha,beta,gamma,delta) and C(beta,alpha,delta,gamma) are one
+    # class.
     q = p.swap()
     assert q.swap() == p
     assert algebra.class_key(p) == algebra.class_key(q)
@@ -323,7 +331,8 @@ def test_swap_invariance_of_class_level_keys(p: ParameterSet) -> None:
 
 
 def test_exceptional_family() -> None:
-    # theory.md §5.1 [VERIFIED A <= 40]: C(2,2,1,2k-1) and C(2,2,2,2k-2) are one class although
+    # docs/theory/isomorphism.md [VERIFIED A <= 40]: C(2,2,1,2k-1) and C(2,2,2,2k-2) are one class
+    # although
     # their lattices differ, also after the swap; C(1,2k+1,1,2k-1) shares only the frame.
     for k in range(2, 8):
         odd, even = C(2, 2, 1, 2 * k - 1), C(2, 2, 2, 2 * k - 2)
@@ -340,7 +349,8 @@ def test_exceptional_family() -> None:
 
 
 def test_same_net_different_systems() -> None:
-    # theory.md §11 "Further check values": literally the same net (A = 5), four systems.
+    # docs/theory/check-values.md "Further check values": literally the same net (A = 5), four
+    # systems.
     sets = [C(3, 2, 1, 1), C(2, 3, 1, 1), C(4, 1, 1, 1), C(1, 4, 1, 1)]
     assert len({algebra.lattice_key(p) for p in sets}) == 1
     assert len({algebra.frame_key(p) for p in sets}) == 1
@@ -349,7 +359,8 @@ def test_same_net_different_systems() -> None:
 
 
 def test_classification_agrees_with_nauty() -> None:
-    # theory.md §5.1 [VERIFIED with nauty for area <= 60]: class and frame keys give exactly the
+    # docs/theory/isomorphism.md [VERIFIED with nauty for area <= 60]: class and frame keys give
+    # exactly the
     # partitions by the marked and the unmarked canonical forms.
     from zoo.core import canonical
 
@@ -387,7 +398,7 @@ def test_classification_agrees_with_nauty() -> None:
 
 
 def test_iterate_definition_and_lattice_inclusion() -> None:
-    # theory.md §8: L_n = <P, nR> is contained in L with index n, and A_n = nA.
+    # docs/theory/iterations.md: L_n = <P, nR> is contained in L with index n, and A_n = nA.
     for p in tuples(4):
         for n in range(1, 5):
             q = algebra.iterate(p, n)
@@ -399,7 +410,8 @@ def test_iterate_definition_and_lattice_inclusion() -> None:
             assert algebra.iteration_depth(q) % n == 0 or algebra.iteration_depth(q) > n
 
 
-ITERATED_STATES = [  # theory.md §11 "n-fold iteration", reachable states for n = 1, 2, 3
+# docs/theory/check-values.md "n-fold iteration", reachable states for n = 1, 2, 3
+ITERATED_STATES = [
     ((1, 1, 1, 1), [2, 4, 6]),
     ((2, 1, 1, 1), [3, 6, 9]),
     ((2, 2, 1, 1), [6, 12, 18]),
@@ -444,7 +456,7 @@ def test_iteration_depth_against_search() -> None:
 
 
 def test_class_iteration_depth_of_the_exceptional_family() -> None:
-    # theory.md §5.1: C(2,2,1,3) ~ C(2,2,2,2) = iterate(C(2,2,1,1), 2) as marked nets.
+    # docs/theory/isomorphism.md: C(2,2,1,3) ~ C(2,2,2,2) = iterate(C(2,2,1,1), 2) as marked nets.
     assert algebra.iteration_depth(C(2, 2, 1, 3)) == 1
     assert algebra.class_iteration_depth(C(2, 2, 1, 3)) == 2
     assert algebra.class_transition_group(C(2, 2, 1, 3)) == (2, 4)
@@ -454,9 +466,10 @@ def test_class_iteration_depth_of_the_exceptional_family() -> None:
 def test_iteration_depth_examples() -> None:
     assert algebra.iteration_depth(C(3, 2, 6, 6)) == 6  # = iterate(C(3,2,1,1), 6)
     assert algebra.iteration_depth(C4223) == 1
-    # C(4,2,4,6) is C(4,2,2,3) iterated twice (theory.md §8), but a delta-step gives the same
+    # C(4,2,4,6) is C(4,2,2,3) iterated twice (docs/theory/iterations.md), but a delta-step gives
+    # the same
     # system C(4,2,8,4) = iterate(C(4,2,2,1), 4), so its depth is 4.
     assert algebra.reading_key(C(4, 2, 4, 6)) == algebra.reading_key(C(4, 2, 8, 4))
     assert algebra.iteration_depth(C(4, 2, 4, 6)) == 4
-    # C(1,2,2,4) = iterate(C(1,2,1,2), 2), theory.md §11 table row
+    # C(1,2,2,4) = iterate(C(1,2,1,2), 2), docs/theory/check-values.md table row
     assert algebra.iteration_depth(C(1, 2, 2, 4)) == 2

@@ -1,4 +1,5 @@
-"""Tests of zoo.core.canonical: nauty canonical forms against networkx, algebra and theory.md."""
+"""Tests of zoo.core.canonical: nauty canonical forms against networkx, algebra and
+docs/theory/README.md."""
 
 from __future__ import annotations
 
@@ -337,7 +338,7 @@ def test_automorphism_counts_against_networkx() -> None:
 
 
 def test_typed_automorphisms_are_translations() -> None:
-    # theory.md §10 [VERIFIED parameters <= 4, A <= 16]: a typed net has exactly A
+    # docs/theory/state-counts.md [VERIFIED parameters <= 4, A <= 16]: a typed net has exactly A
     # automorphisms, a typed marked system exactly gcd(alpha, beta)
     for p in parameter_sets(16):
         assert form_of(p, False, True).automorphisms == p.area, p
@@ -412,12 +413,14 @@ def test_foreign_canonical_text_is_invariant_under_relabelling(seed: int) -> Non
             assert not marked or other.tokens[k] == g.tokens[j]
 
 
-# --- theory.md §5.1 ---------------------------------------------------------------------------
+# --- docs/theory/isomorphism.md
+# ---------------------------------------------------------------------------
 
 
 @pytest.mark.parametrize("k", [2, 3, 4, 5, 6])
 def test_exceptional_family(k: int) -> None:
-    # theory.md §5.1 [VERIFIED A <= 40]: C(2,2,1,2k-1) ~ C(2,2,2,2k-2) as nets and systems,
+    # docs/theory/isomorphism.md [VERIFIED A <= 40]: C(2,2,1,2k-1) ~ C(2,2,2,2k-2) as nets and
+    # systems,
     # although their lattices differ also after the swap
     p, q = C(2, 2, 1, 2 * k - 1), C(2, 2, 2, 2 * k - 2)
     assert algebra.lattice_key(p) not in (algebra.lattice_key(q), algebra.lattice_key(q.swap()))
@@ -435,7 +438,7 @@ def test_exceptional_family(k: int) -> None:
 
 
 def test_c1513_and_c2222() -> None:
-    # theory.md §5.1: C(1,5,1,3) vs C(2,2,2,2) net-isomorphic but not system-isomorphic
+    # docs/theory/isomorphism.md: C(1,5,1,3) vs C(2,2,2,2) net-isomorphic but not system-isomorphic
     p, q = C(1, 5, 1, 3), C(2, 2, 2, 2)
     assert net_form(p).text == net_form(q).text
     assert system_form(p).text != system_form(q).text
@@ -444,7 +447,8 @@ def test_c1513_and_c2222() -> None:
 
 
 def test_same_net_different_systems() -> None:
-    # theory.md §11 further check values: C(3,2,1,1), C(2,3,1,1), C(4,1,1,1), C(1,4,1,1) are
+    # docs/theory/check-values.md further check values: C(3,2,1,1), C(2,3,1,1), C(4,1,1,1),
+    # C(1,4,1,1) are
     # the same net with different markings; the first two are one class by the swap
     nets = {net_form(p).text for p in (C(3, 2, 1, 1), C(2, 3, 1, 1), C(4, 1, 1, 1), C(1, 4, 1, 1))}
     assert len(nets) == 1
@@ -453,15 +457,17 @@ def test_same_net_different_systems() -> None:
 
 
 def test_swap_symmetry() -> None:
-    # theory.md §5.1 swap symmetry: C(a,b,c,d) ~ C(b,a,d,c) as systems
+    # docs/theory/isomorphism.md swap symmetry: C(a,b,c,d) ~ C(b,a,d,c) as systems
     for p in parameter_sets(12):
         assert form_of(p, True).text == form_of(p.swap(), True).text, p
 
 
 def test_typed_net_classes_per_area() -> None:
-    # theory.md §2.4 [VERIFIED A <= 24]: sigma(A) - tau(A) typed net classes of area A (OEIS
+    # docs/theory/lattice-key.md [VERIFIED A <= 24]: sigma(A) - tau(A) typed net classes of area A
+    # (OEIS
     # A065608, from memory; the terms are computed here with sympy, not pasted); equal to the
-    # number of distinct lattice keys (theory.md §5.1: typed isomorphism <=> equal lattices)
+    # number of distinct lattice keys (docs/theory/isomorphism.md: typed isomorphism <=> equal
+    # lattices)
     for a in range(2, 25):
         members = list(iter_parameter_sets(a))
         typed = {form_of(p, False, True).fingerprint for p in members}
@@ -470,7 +476,8 @@ def test_typed_net_classes_per_area() -> None:
 
 
 def test_nauty_classes_equal_algebraic_classes() -> None:
-    # design.md §1 / theory.md §5.1 [VERIFIED with nauty for A <= 60 there]: the partition of
+    # docs/theory/isomorphism.md / docs/theory/isomorphism.md [VERIFIED with nauty for A <= 60
+    # there]: the partition of
     # every area into nauty classes equals the one by algebra.class_key, likewise frames and
     # algebra.frame_key, and typed readings and algebra.reading_key
     for a in range(2, 31):
@@ -501,7 +508,8 @@ def test_isomorphism_of_swap_pair() -> None:
     for j, k in enumerate(p_map):
         assert g2.pre[k] == t_map[g1.pre[j]] and g2.post[k] == t_map[g1.post[j]]
         assert g2.tokens[k] == g1.tokens[j]
-        assert g2.kinds[k] != g1.kinds[j]  # theory.md §5.1: the swap exchanges the kinds
+        # docs/theory/isomorphism.md: the swap exchanges the kinds
+        assert g2.kinds[k] != g1.kinds[j]
     assert isomorphism(g1, g2, typed=True) is None
     assert isomorphism(net_of(C(3, 3, 1, 3)), net_of(C(3, 3, 2, 2))) is None
 

@@ -1,6 +1,8 @@
 """The closed formulas of zoo.core.invariants against explicit search on every small parameter set.
 
-Each formula (theory.md §3, §4, §7, §10) is compared with a computation on the explicit net
+Each formula (docs/theory/initial-marking.md, docs/theory/cycles-and-tokens.md,
+docs/theory/minimal-cycle-length.md, docs/theory/processes.md, docs/theory/state-counts.md) is
+compared with a computation on the explicit net
 that does not use it: breadth-first search for shortest cycles (and networkx as a second
 reference), following arcs for forward and backward cycles, the reachability graph for states,
 arcs, enabling, liveness, safeness and reversibility, and networkx.simple_cycles for the cycle
@@ -65,7 +67,8 @@ def networkx_girth(net: CycloidNet) -> int:
 
 
 def test_minimal_cycle_length_against_bfs() -> None:
-    # theory.md §4 exact algorithm [VERIFIED = BFS girth for all parameters <= 7 there]
+    # docs/theory/minimal-cycle-length.md exact algorithm [VERIFIED = BFS girth for all parameters
+    # <= 7 there]
     for p in parameter_sets(32):
         assert invariants.minimal_cycle_length(p) == bfs_girth(build_net(p)), p
 
@@ -78,7 +81,8 @@ def test_bfs_girth_against_networkx() -> None:
 
 
 def test_minimal_cycle_length_counterexamples() -> None:
-    # theory.md §4 table [VERIFIED]: true cyc where the one-token formula is too large
+    # docs/theory/minimal-cycle-length.md table [VERIFIED]: true cyc where the one-token formula is
+    # too large
     for p, cyc in [
         (ParameterSet(1, 6, 1, 3), 3),
         (ParameterSet(1, 7, 1, 4), 4),
@@ -111,7 +115,8 @@ def cycles_of_kind(net: CycloidNet, kind: str) -> list[tuple[int, int]]:
 
 
 def test_forward_and_backward_cycles() -> None:
-    # theory.md §7 [VERIFIED all parameters <= 5 there]: gcd(beta, delta) forward cycles of
+    # docs/theory/processes.md [VERIFIED all parameters <= 5 there]: gcd(beta, delta) forward cycles
+    # of
     # length A/g with beta/g tokens; gcd(alpha, gamma) backward cycles of A/h with alpha/h
     for p in parameter_sets(30):
         net = build_net(p)
@@ -124,7 +129,8 @@ def test_forward_and_backward_cycles() -> None:
 
 
 def test_enabled_and_semi_enabled_at_m0() -> None:
-    # theory.md §3.1 [VERIFIED]: min(alpha, beta) enabled, |alpha - beta| semi-enabled
+    # docs/theory/initial-marking.md [VERIFIED]: min(alpha, beta) enabled, |alpha - beta|
+    # semi-enabled
     for p in parameter_sets(30):
         net = build_net(p)
         marked_inputs = [0] * net.transition_count
@@ -135,7 +141,8 @@ def test_enabled_and_semi_enabled_at_m0() -> None:
 
 
 def test_reachability_graph_against_formulas() -> None:
-    # theory.md §10 [VERIFIED on 639 cycloids there]: |RG| = A*C(a+b,a)/(a+b) states and
+    # docs/theory/state-counts.md [VERIFIED on 639 cycloids there]: |RG| = A*C(a+b,a)/(a+b) states
+    # and
     # A*C(a+b-2,a-1) arcs; §3.2: live, 1-safe, reversible ([P18]/[FI19] recalled)
     for p in parameter_sets(16):
         rg = reachability_graph(build_net(p))
@@ -145,7 +152,8 @@ def test_reachability_graph_against_formulas() -> None:
 
 
 def test_enabled_transitions_in_every_marking() -> None:
-    # theory.md §3.1 [VERIFIED A <= 22 there]: every reachable marking enables between 1 and
+    # docs/theory/initial-marking.md [VERIFIED A <= 22 there]: every reachable marking enables
+    # between 1 and
     # min(alpha, beta) transitions, and M0 enables the most
     for p in parameter_sets(16):
         rg = reachability_graph(build_net(p))
@@ -156,7 +164,8 @@ def test_enabled_transitions_in_every_marking() -> None:
 
 
 def test_shortest_return_to_m0_fires_every_transition_once() -> None:
-    # theory.md §3.2: a shortest non-empty firing sequence from M0 back to M0 has length A and
+    # docs/theory/cycles-and-tokens.md: a shortest non-empty firing sequence from M0 back to M0 has
+    # length A and
     # fires every transition exactly once
     for p in parameter_sets(14):
         rg = reachability_graph(build_net(p))
@@ -196,14 +205,15 @@ def test_cycle_time_against_simple_cycles() -> None:
         for cycle in nx.simple_cycles(graph):
             places = [node for node in cycle if graph.nodes[node]["kind"] == "place"]
             tokens = sum(graph.nodes[node]["tokens"] for node in places)
-            assert tokens >= 1, (p, cycle)  # live: every cycle is marked (theory.md §3.2)
+            # live: every cycle is marked (docs/theory/cycles-and-tokens.md)
+            assert tokens >= 1, (p, cycle)
             best = max(best, Fraction(len(places), tokens))
         assert best == invariants.cycle_time(p), p
 
 
 @pytest.mark.parametrize("p", [ParameterSet(4, 2, 2, 3), ParameterSet(12, 4, 1, 1)])
 def test_explicit_examples(p: ParameterSet) -> None:
-    # theory.md §11 table rows, through the same explicit route as above
+    # docs/theory/check-values.md table rows, through the same explicit route as above
     net = build_net(p)
     rg = reachability_graph(net)
     assert rg.state_count == invariants.reachable_state_count(p)

@@ -1,8 +1,12 @@
-"""Closed-form invariants against theory.md's tables (§3, §4, §9, §10, §11) and explicit search.
+"""Closed-form invariants against docs/theory/initial-marking.md,
+docs/theory/minimal-cycle-length.md, docs/theory/ring-designs.md, docs/theory/state-counts.md,
+docs/theory/check-values.md and explicit search.
 
-``BruteNet`` folds the Petri space by the definition of theory.md §2.1 (x and y fold together
+``BruteNet`` folds the Petri space by the definition of docs/theory/folding.md (x and y fold
+together
 iff y - x is an integer combination of P and R, found by enumerating the combinations), marks
-it by the published form of M0 recalled in theory.md §3.1 (a place carries a token iff its arc
+it by the published form of M0 recalled in docs/theory/initial-marking.md (a place carries a token
+iff its arc
 crosses from level <= 0 to level > 0), and then answers every question by plain search:
 breadth-first girth, orbits of the forward and backward successor maps, the reachability graph
 by breadth-first search over markings, and cycle ratios by networkx's simple-cycle search. None
@@ -82,7 +86,7 @@ def brute_net(p: ParameterSet) -> BruteNet:
             succ[t] = find(step)
             if succ[t] == known:
                 queue.append(succ[t])
-    assert len(points) == area  # |T| = A, theory.md §2.1
+    assert len(points) == area  # |T| = A, docs/theory/folding.md
     level = [b * x + a * y for x, y in points]
     return BruteNet(
         p,
@@ -177,7 +181,8 @@ def brute_reachability(net: BruteNet, limit: int = 6000) -> tuple[int, int]:
             arcs += 1
             after = marking & ~(1 << f_in[t]) & ~(1 << (area + b_in[t]))
             for bit in (t, area + t):
-                assert not (after >> bit) & 1, "the net is not 1-safe"  # theory.md §3.2
+                # docs/theory/cycles-and-tokens.md
+                assert not (after >> bit) & 1, "the net is not 1-safe"
                 after |= 1 << bit
             if after not in seen:
                 seen.add(after)
@@ -205,7 +210,8 @@ def tuples(limit: int) -> list[ParameterSet]:
     return [C(*t) for t in itertools.product(range(1, limit + 1), repeat=4)]
 
 
-# --- theory.md §11 table -----------------------------------------------------------------------
+# --- docs/theory/check-values.md table
+# -----------------------------------------------------------------------
 
 # cycloid, A, fwd (count, length, tokens), bwd, cyc, cyc1, beta|delta, en, semi, states, edges, w
 TABLE_11 = [
@@ -244,7 +250,7 @@ TABLE_11 = [
 
 @pytest.mark.parametrize("row", TABLE_11, ids=lambda row: str(C(*row[0])))
 def test_table_11_closed_forms(row: tuple) -> None:  # type: ignore[type-arg]
-    # theory.md §11 table [VERIFIED: BFS girth, explicit reachability graphs]
+    # docs/theory/check-values.md table [VERIFIED: BFS girth, explicit reachability graphs]
     (params, area, fwd, bwd, cyc, cyc1, regular, en, semi, states, edges, w) = row
     p = C(*params)
     assert p.area == area
@@ -278,7 +284,7 @@ def test_table_11_rows_by_explicit_search(row: tuple) -> None:  # type: ignore[t
 
 
 def test_c4223_initial_marking() -> None:
-    # theory.md §3.1 example C(4,2,2,3) (<= 0 / > 0 convention) [VERIFIED]
+    # docs/theory/initial-marking.md example C(4,2,2,3) (<= 0 / > 0 convention) [VERIFIED]
     p = C(4, 2, 2, 3)
     assert invariants.enabled_transitions(p) == [(1, 0), (3, -1)]
     assert invariants.semi_enabled_transitions(p) == [(2, 0), (4, -1)]
@@ -302,13 +308,14 @@ def test_invariants_against_explicit_net(p: ParameterSet) -> None:
     assert brute_orbits(net.forward, net.forward_marked) == [(fwd.length, fwd.tokens)] * fwd.count
     assert brute_orbits(net.backward, net.backward_marked) == [(bwd.length, bwd.tokens)] * bwd.count
     assert invariants.process_count(p) == fwd.count
-    # regular <=> every forward cycle carries exactly one token (theory.md §7)
+    # regular <=> every forward cycle carries exactly one token (docs/theory/processes.md)
     assert invariants.is_regular(p) == (fwd.tokens == 1)
     enabled, semi = enabled_at(net, initial_marking(net))
     to_rep = [algebra.representative(p, x) for x in net.points]
     assert sorted(to_rep[t] for t in enabled) == invariants.enabled_transitions(p)
     assert sorted(to_rep[t] for t in semi) == invariants.semi_enabled_transitions(p)
-    # tokens: beta cars on forward places, alpha gaps on backward places (theory.md §3.1)
+    # tokens: beta cars on forward places, alpha gaps on backward places
+    # (docs/theory/initial-marking.md)
     assert sum(net.forward_marked) == p.beta and sum(net.backward_marked) == p.alpha
     if invariants.reachable_state_count(p) <= 3000:
         assert brute_reachability(net) == (
@@ -318,7 +325,8 @@ def test_invariants_against_explicit_net(p: ParameterSet) -> None:
 
 
 def test_reachability_formula_on_larger_token_counts() -> None:
-    # theory.md §10 [VERIFIED on 639 cycloids with alpha, beta <= 6]: a few with more tokens.
+    # docs/theory/state-counts.md [VERIFIED on 639 cycloids with alpha, beta <= 6]: a few with more
+    # tokens.
     for p in (C(5, 3, 1, 2), C(6, 2, 1, 1), C(4, 4, 1, 1), C(2, 6, 2, 1)):
         net = brute_net(p)
         assert brute_reachability(net) == (
@@ -334,7 +342,7 @@ def cycle_ratio_maximum(net: BruteNet) -> Fraction:
     for cycle in nx.simple_cycles(graph):
         transitions = sum(1 for v in cycle if graph.nodes[v]["kind"] == "transition")
         tokens = sum(1 for v in cycle if graph.nodes[v]["marked"])
-        assert tokens >= 1  # live: every cycle carries a token (theory.md §3.2)
+        assert tokens >= 1  # live: every cycle carries a token (docs/theory/cycles-and-tokens.md)
         best = max(best, Fraction(transitions, tokens))
     return best
 
@@ -404,12 +412,14 @@ def test_automorphism_orders_against_networkx() -> None:
         report = invariant_report(p)
         assert report["automorphisms"] == marked, p
         assert report["net_automorphisms"] == plain, p
-        # theory.md §10 [VERIFIED]: the typed net has A automorphisms, the typed system
+        # docs/theory/state-counts.md [VERIFIED]: the typed net has A automorphisms, the typed
+        # system
         # gcd(alpha, beta); the untyped groups contain them.
         assert plain % p.area == 0 and marked % gcd(p.alpha, p.beta) == 0
 
 
-# --- theory.md §4: the minimal cycle length ----------------------------------------------------
+# --- docs/theory/minimal-cycle-length.md: the minimal cycle length
+# ----------------------------------------------------
 
 
 def brute_lattice_loop(p: ParameterSet) -> int:
@@ -426,7 +436,8 @@ def brute_lattice_loop(p: ParameterSet) -> int:
 
 
 def test_loop_theorem_on_all_parameters_up_to_8() -> None:
-    # theory.md §4: cyc is the shortest non-negative lattice vector; the one-token formula is
+    # docs/theory/minimal-cycle-length.md: cyc is the shortest non-negative lattice vector; the
+    # one-token formula is
     # exact under the theorem's condition [VERIFIED on all 50,625 tuples <= 15; here <= 8].
     for p in tuples(8):
         exact = brute_lattice_loop(p)
@@ -438,7 +449,8 @@ def test_loop_theorem_on_all_parameters_up_to_8() -> None:
 
 
 def test_one_token_formula_failures_up_to_15() -> None:
-    # theory.md §4: of the 50,625 tuples <= 15, cyc_1 differs from cyc on exactly 296, and
+    # docs/theory/minimal-cycle-length.md: of the 50,625 tuples <= 15, cyc_1 differs from cyc on
+    # exactly 296, and
     # never where the theorem's condition holds.
     failures = 0
     for p in tuples(15):
@@ -451,7 +463,7 @@ def test_one_token_formula_failures_up_to_15() -> None:
 
 @pytest.mark.parametrize(
     ("params", "area", "cyc", "cyc1", "witness", "tokens"),
-    [  # theory.md §4 counterexample table [VERIFIED]
+    [  # docs/theory/minimal-cycle-length.md counterexample table [VERIFIED]
         ((1, 6, 1, 3), 9, 3, 4, (3, 0), 2),
         ((1, 7, 1, 4), 11, 4, 5, (3, 1), 2),
         ((1, 10, 1, 5), 15, 3, 6, (3, 0), 2),
@@ -479,7 +491,8 @@ def test_shortest_cycle_vector_is_a_cycle() -> None:
         assert algebra.are_equivalent(p, (0, 0), (xi, eta))
 
 
-# --- theory.md §9: circular traffic queues -----------------------------------------------------
+# --- docs/theory/ring-designs.md: circular traffic queues
+# -----------------------------------------------------
 
 RING_TABLE = [  # c, g, then A/cyc/RG for anonymous, individual cars, individual gaps, both
     (1, 1, (2, 2, 2), (2, 2, 2), (2, 2, 2), (2, 2, 2)),
@@ -496,7 +509,8 @@ RING_TABLE = [  # c, g, then A/cyc/RG for anonymous, individual cars, individual
 
 @pytest.mark.parametrize("row", RING_TABLE, ids=lambda r: f"c{r[0]}g{r[1]}")
 def test_ring_cycloids(row: tuple) -> None:  # type: ignore[type-arg]
-    # theory.md §9 table [VERIFIED by reachability-graph isomorphism with a simulator]
+    # docs/theory/ring-designs.md table [VERIFIED by reachability-graph isomorphism with a
+    # simulator]
     c, g, *columns = row
     ell = c * g // gcd(c, g)
     for p, (area, cyc, states) in zip(
@@ -508,24 +522,27 @@ def test_ring_cycloids(row: tuple) -> None:  # type: ignore[type-arg]
         assert states == p.area * comb(c + g, c) // (c + g)
 
 
-# --- theory.md §10 identities and exactness ---------------------------------------------------
+# --- docs/theory/state-counts.md identities and exactness
+# ---------------------------------------------------
 
 
 @given(st.builds(C, *(st.integers(1, 30) for _ in range(4))))
 def test_counting_identities(p: ParameterSet) -> None:
     a, b, c, d = p.as_tuple()
     states, arcs = invariants.reachable_state_count(p), invariants.state_arc_count(p)
-    # theory.md §10: the two forms of |RG|, and the mean enabled count alpha*beta/(alpha+beta-1)
+    # docs/theory/state-counts.md: the two forms of |RG|, and the mean enabled count
+    # alpha*beta/(alpha+beta-1)
     assert states == d * comb(a + b - 1, a - 1) + c * comb(a + b - 1, a)
     assert Fraction(arcs, states) == Fraction(a * b, a + b - 1)
-    # theory.md §3.1: 2*#enabled + #semi-enabled = alpha + beta = |M0|
+    # docs/theory/initial-marking.md: 2*#enabled + #semi-enabled = alpha + beta = |M0|
     assert 2 * invariants.enabled_count(p) + invariants.semi_enabled_count(p) == a + b
     assert invariants.cycle_time(p) == Fraction(p.area, min(a, b))
 
 
 @given(st.builds(C, *(st.integers(1, 60) for _ in range(4))))
 def test_swap_invariance(p: ParameterSet) -> None:
-    # theory.md §5.1: the swap is a net isomorphism mapping M0 to M0 with alpha, beta exchanged.
+    # docs/theory/isomorphism.md: the swap is a net isomorphism mapping M0 to M0 with alpha, beta
+    # exchanged.
     q = p.swap()
     for invariant in (
         invariants.minimal_cycle_length,
@@ -542,7 +559,7 @@ def test_swap_invariance(p: ParameterSet) -> None:
 
 
 def test_huge_state_counts_are_exact() -> None:
-    # C(100,100,1,1): A = 200, |RG| = A*C(200,100)/200 = C(200,100) (theory.md §10)
+    # C(100,100,1,1): A = 200, |RG| = A*C(200,100)/200 = C(200,100) (docs/theory/state-counts.md)
     p = C(100, 100, 1, 1)
     assert invariants.reachable_state_count(p) == comb(200, 100)
     assert invariants.reachable_state_count(p) > 2**190
@@ -550,14 +567,17 @@ def test_huge_state_counts_are_exact() -> None:
 
 
 def test_slowness_published_values() -> None:
-    # [P18] intro: w = (12 - 4)/(12 + 4) = 1/2 for 12 gaps and 4 cars; theory.md §10 C(4,2,2,3)
+    # [P18] intro: w = (12 - 4)/(12 + 4) = 1/2 for 12 gaps and 4 cars; docs/theory/state-counts.md
+    # C(4,2,2,3)
     assert invariants.slowness(C(12, 4, 1, 1)) == Fraction(1, 2)
     assert invariants.slowness(C(4, 2, 2, 3)) == Fraction(1, 3)
-    assert invariants.slowness(C(3, 3, 2, 2)) == 0  # symmetric cycloids, theory.md §10
+    # symmetric cycloids, docs/theory/state-counts.md
+    assert invariants.slowness(C(3, 3, 2, 2)) == 0
 
 
 def test_symmetric_cycloids() -> None:
-    # theory.md §10: for alpha = beta, w = 0, cyc = gamma + delta, A = alpha*cyc, and every
+    # docs/theory/state-counts.md: for alpha = beta, w = 0, cyc = gamma + delta, A = alpha*cyc, and
+    # every
     # cycle length is a multiple of gamma + delta (the last by networkx on the explicit nets).
     for a, c, d in itertools.product(range(1, 7), repeat=3):
         p = C(a, a, c, d)
@@ -572,7 +592,8 @@ def test_symmetric_cycloids() -> None:
 
 
 def test_enabled_count_bounds_over_all_reachable_markings() -> None:
-    # theory.md §3.1 [VERIFIED A <= 22]: every reachable marking enables between 1 and
+    # docs/theory/initial-marking.md [VERIFIED A <= 22]: every reachable marking enables between 1
+    # and
     # min(alpha, beta) transitions, and M0 reaches the maximum.
     for p in (C(4, 2, 2, 3), C(3, 3, 1, 3), C(2, 3, 1, 2), C(3, 2, 2, 2), C(12, 4, 1, 1)):
         net = brute_net(p)

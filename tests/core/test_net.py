@@ -36,7 +36,7 @@ def test_fundamental_points_equal_the_algebra_module() -> None:
 
 
 def test_transitions_of_c4223() -> None:
-    # theory.md §2.3 example, the 16 representatives [VERIFIED]
+    # docs/theory/equivalence.md example, the 16 representatives [VERIFIED]
     expected = [(0, 0), (1, 0), (1, 1), (2, -1), (2, 0), (2, 1), (2, 2), (3, -1), (3, 0),
                 (3, 1), (3, 2), (4, -1), (4, 0), (4, 1), (5, 0), (5, 1)]  # fmt: skip
     net = build_net(C4223)
@@ -48,7 +48,7 @@ def test_transitions_of_c4223() -> None:
 def _fold_explicitly(p: ParameterSet) -> dict[tuple[int, int], tuple[int, int]]:
     """Fold a window of the Petri space by the lattice generators P and R with union-find.
 
-    The definition of the cycloid as a quotient (theory.md §2.1), without the integer test.
+    The definition of the cycloid as a quotient (docs/theory/folding.md), without the integer test.
     Returns a map from every window point to the root of its class.
     """
     radius = 3 * max(p.as_tuple()) + 2
@@ -72,7 +72,7 @@ def _fold_explicitly(p: ParameterSet) -> dict[tuple[int, int], tuple[int, int]]:
 
 
 def test_net_structure_matches_explicit_folding() -> None:
-    # theory.md §2.1 (the quotient) and §1 (flow: forward to (xi+1, eta), backward to
+    # docs/theory/folding.md (the quotient) and §1 (flow: forward to (xi+1, eta), backward to
     # (xi, eta+1)); window folding is independent of the integer test used by build_net.
     for p in small_parameter_sets(9):
         net = build_net(p)
@@ -87,8 +87,8 @@ def test_net_structure_matches_explicit_folding() -> None:
 
 
 def test_counts_and_tokens() -> None:
-    # A transitions, 2A places, 4A arcs (theory.md §2.1); beta tokens on forward places and
-    # alpha on backward places (theory.md §3.1, [VERIFIED])
+    # A transitions, 2A places, 4A arcs (docs/theory/folding.md); beta tokens on forward places and
+    # alpha on backward places (docs/theory/initial-marking.md, [VERIFIED])
     for p in small_parameter_sets(30):
         net = build_net(p)
         a = p.area
@@ -104,7 +104,7 @@ def test_counts_and_tokens() -> None:
 
 
 def test_initial_marking_of_c4223() -> None:
-    # theory.md §3.1 example C(4,2,2,3) [VERIFIED]
+    # docs/theory/initial-marking.md example C(4,2,2,3) [VERIFIED]
     net = build_net(C4223)
     index = {name: i for i, name in enumerate(net.transitions)}
 
@@ -118,7 +118,7 @@ def test_initial_marking_of_c4223() -> None:
 
 
 def test_transition_at_folds_points() -> None:
-    # theory.md §2.3: t_{6,1} = t_Q is equivalent to t_{0,0} in C(4,2,2,3)
+    # docs/theory/equivalence.md: t_{6,1} = t_Q is equivalent to t_{0,0} in C(4,2,2,3)
     net = build_net(C4223)
     assert net.transitions[net.transition_at((6, 1))] == "t_0_0"
     assert net.transitions[net.transition_at((16, 0))] == "t_0_0"

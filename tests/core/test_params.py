@@ -13,7 +13,7 @@ from hypothesis import strategies as st
 from zoo.core.params import MAX_AREA, ParameterSet, parse_params
 from zoo.errors import ParameterError
 
-C4223 = ParameterSet(4, 2, 2, 3)  # theory.md §2.3 running example
+C4223 = ParameterSet(4, 2, 2, 3)  # docs/theory/equivalence.md running example
 
 
 @pytest.mark.parametrize(
@@ -38,9 +38,9 @@ def test_accepted_forms(text: str) -> None:
 def test_value_type() -> None:
     p = ParameterSet(4, 2, 2, 3)
     assert str(p) == "C(4,2,2,3)"
-    assert p.area == 16  # A = alpha*delta + beta*gamma, theory.md §2.1
+    assert p.area == 16  # A = alpha*delta + beta*gamma, docs/theory/folding.md
     assert p.as_tuple() == (4, 2, 2, 3)
-    assert p.swap() == ParameterSet(2, 4, 3, 2)  # theory.md §5.1
+    assert p.swap() == ParameterSet(2, 4, 3, 2)  # docs/theory/isomorphism.md
     assert hash(p) == hash(ParameterSet(4, 2, 2, 3))
     assert ParameterSet.parse("4 2 2 3") == p
     with pytest.raises(AttributeError):
@@ -48,7 +48,7 @@ def test_value_type() -> None:
 
 
 def test_ordering_is_lexicographic() -> None:
-    # design.md §2: the label of a class is its lexicographically smallest member.
+    # docs/citing.md: the label of a class is its lexicographically smallest member.
     items = [ParameterSet(2, 1, 1, 1), ParameterSet(1, 2, 1, 1), ParameterSet(1, 1, 2, 1)]
     assert sorted(items) == [ParameterSet(1, 1, 2, 1), ParameterSet(1, 2, 1, 1), items[0]]
     assert min(items) == ParameterSet(1, 1, 2, 1)

@@ -24,7 +24,8 @@ from zoo.errors import FormatError, LimitExceeded, ParameterError
 
 C = ParameterSet
 
-# theory.md §11 table [VERIFIED by explicit BFS there]: RG states, RG edges, enabled at M0
+# docs/theory/check-values.md table [VERIFIED by explicit BFS there]: RG states, RG edges, enabled
+# at M0
 THEORY_TABLE = [
     (C(1, 1, 1, 1), 2, 2, 1), (C(2, 1, 1, 1), 3, 3, 1), (C(1, 2, 1, 1), 3, 3, 1),
     (C(2, 2, 1, 1), 6, 8, 2), (C(3, 2, 1, 1), 10, 15, 2), (C(2, 3, 1, 1), 10, 15, 2),
@@ -44,10 +45,10 @@ def test_theory_table(p: ParameterSet, states: int, arcs: int, enabled: int) -> 
     rg = reachability_graph(build_net(p))
     assert (rg.state_count, rg.arc_count) == (states, arcs)
     assert sum(1 for source, _t, _u in rg.arcs if source == 0) == enabled
-    assert is_live(rg) and is_one_safe(rg) and is_reversible(rg)  # theory.md §3.2
+    assert is_live(rg) and is_one_safe(rg) and is_reversible(rg)  # docs/theory/cycles-and-tokens.md
 
 
-# theory.md §11 "n-fold iteration" [VERIFIED]: reachable states for n = 1, 2, 3
+# docs/theory/check-values.md "n-fold iteration" [VERIFIED]: reachable states for n = 1, 2, 3
 ITERATIONS = [
     (C(1, 1, 1, 1), (2, 4, 6)), (C(2, 1, 1, 1), (3, 6, 9)), (C(2, 2, 1, 1), (6, 12, 18)),
     (C(3, 2, 1, 1), (10, 20, 30)), (C(2, 3, 1, 2), (14, 28, 42)), (C(3, 3, 1, 3), (40, 80, 120)),
@@ -64,7 +65,8 @@ def test_iterations_multiply_the_states(p: ParameterSet, counts: tuple[int, ...]
         assert reachability_graph(build_net(q)).state_count == expected, (q, n)
 
 
-# theory.md §9 table [VERIFIED against a traffic simulator there]: (c cars, g gaps) -> RG size
+# docs/theory/ring-designs.md table [VERIFIED against a traffic simulator there]: (c cars, g gaps)
+# -> RG size
 # of the anonymous C(g,c,1,1), individual-cars C(g,c,c,c), individual-gaps C(g,c,g,g) and
 # individual C(g,c,l,l) models, l = lcm(c, g)
 TRAFFIC = [
@@ -158,7 +160,7 @@ def test_against_networkx_components() -> None:
 
 
 def test_state_limit() -> None:
-    net = build_net(C(12, 4, 1, 1))  # 1820 states, theory.md §11
+    net = build_net(C(12, 4, 1, 1))  # 1820 states, docs/theory/check-values.md
     with pytest.raises(LimitExceeded) as info:
         reachability_graph(net, limit=1000)
     assert str(info.value) == (

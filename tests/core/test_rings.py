@@ -3,7 +3,8 @@
 The reference is the simulator itself (a ring of C + G cells, an item steps into the free cell
 ahead), which knows nothing of cycloids, and networkx's graph isomorphism (VF2): for every small
 ring the simulated state graph must be isomorphic to the reachability graph of the cycloid that
-zoo.core.rings assigns (theory.md §9 mapping, [TQ20] for the statement that such queues are
+zoo.core.rings assigns (docs/theory/ring-designs.md mapping, [TQ20] for the statement that such
+queues are
 cycloids).
 """
 
@@ -34,7 +35,8 @@ from zoo.errors import LimitExceeded, ParameterError
 MODELS = [(False, False), (True, False), (False, True), (True, True)]
 MODEL_IDS = ["anonymous", "items", "slots", "both"]
 
-# Every ring with c, g <= 4 and c + g <= 7 (the range of theory.md §9's verification).
+# Every ring with c, g <= 4 and c + g <= 7 (the range of docs/theory/ring-designs.md's
+# verification).
 SMALL_RINGS = [(c, g) for c in range(1, 5) for g in range(1, 5) if c + g <= 7]
 
 
@@ -51,7 +53,8 @@ def test_simulated_ring_is_isomorphic_to_its_cycloid(named_items: bool, named_sl
 
 def test_a_wrong_cycloid_of_the_same_size_is_told_apart() -> None:
     """The check has teeth: C(3,3,1,5) has as many states and arcs as the ring's C(3,3,3,3)
-    (both A = 18, alpha = beta = 3) but is another system (theory.md §6, (18, 6, 3) row)."""
+    (both A = 18, alpha = beta = 3) but is another system (docs/theory/synthesis.md, (18, 6, 3)
+    row)."""
     from zoo.core.net import build_net
     from zoo.core.params import ParameterSet
     from zoo.core.reachability import reachability_graph, reachability_to_networkx
@@ -63,7 +66,8 @@ def test_a_wrong_cycloid_of_the_same_size_is_told_apart() -> None:
     assert not nx.is_isomorphic(simulated, rival)
 
 
-# theory.md §9, table "c | g | anonymous A/cyc/RG | ind. cars ... | ind. gaps ... | both",
+# docs/theory/ring-designs.md, table "c | g | anonymous A/cyc/RG | ind. cars ... | ind. gaps ... |
+# both",
 # [VERIFIED] there by simulator-against-cycloid isomorphism. Items are cars, slots are gaps.
 THEORY_TABLE = {
     (1, 1): [(2, 2, 2), (2, 2, 2), (2, 2, 2), (2, 2, 2)],
@@ -94,7 +98,8 @@ def test_theory_table_rows(ring: tuple[int, int]) -> None:
 
 
 def test_theory_mapping_rows() -> None:
-    """theory.md §9 first table: C(g,c,1,1), C(g,c,c,c), C(g,c,g,g), C(g,c,l,l), l = lcm."""
+    """docs/theory/ring-designs.md first table: C(g,c,1,1), C(g,c,c,c), C(g,c,g,g), C(g,c,l,l), l =
+    lcm."""
     assert str(RingDesign(3, 2).params) == "C(2,3,1,1)"
     assert str(RingDesign(3, 2, individual_items=True).params) == "C(2,3,3,3)"
     assert str(RingDesign(3, 2, individual_slots=True).params) == "C(2,3,2,2)"
@@ -120,7 +125,8 @@ def test_moves_and_initial_state() -> None:
 
 
 def test_every_state_is_reached_and_left() -> None:
-    """A ring never deadlocks and can always come back (live and reversible, theory.md §3.2)."""
+    """A ring never deadlocks and can always come back (live and reversible,
+    docs/theory/cycles-and-tokens.md)."""
     graph = ring_state_graph(RingDesign(3, 2, True, True))
     assert nx.is_strongly_connected(graph)
     assert all(graph.out_degree(node) >= 1 for node in graph)
@@ -140,7 +146,8 @@ def test_bad_designs_are_refused() -> None:
 def test_describe_ring_fields() -> None:
     report = describe_ring(RingDesign(2, 3, individual_items=True), None)
     assert report["params"] == "C(3,2,2,2)"
-    assert report["area"] == 10 and report["states"] == 20  # theory.md §9 table, row 2/3
+    # docs/theory/ring-designs.md table, row 2/3
+    assert report["area"] == 10 and report["states"] == 20
     assert report["class_id"] is None
     assert report["invariants"]["loop"] == 4
     assert report["invariants"]["label"] == "C(3,2,2,2)"

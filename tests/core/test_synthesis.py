@@ -1,7 +1,7 @@
-"""Synthesis of parameter sets from (A, cyc, alpha, beta) against theory.md §6.
+"""Synthesis of parameter sets from (A, cyc, alpha, beta) against docs/theory/synthesis.md.
 
 Candidates are cross-checked against a plain search over all parameter sets of the area; the
-class tables of theory.md §6 are reproduced with zoo.core.algebra.class_key.
+class tables of docs/theory/synthesis.md are reproduced with zoo.core.algebra.class_key.
 """
 
 from __future__ import annotations
@@ -19,7 +19,8 @@ C = ParameterSet
 
 
 def test_running_example() -> None:
-    # theory.md §6: C(4,2,2,3), A = 16, cyc = 5, alpha = 4, beta = 2 gives gamma = 2, delta = 3.
+    # docs/theory/synthesis.md: C(4,2,2,3), A = 16, cyc = 5, alpha = 4, beta = 2 gives gamma = 2,
+    # delta = 3.
     assert closed_form_parameters(16, 5, 4, 2) == C(4, 2, 2, 3)
     assert synthesize(16, 5, 4, 2) == [C(4, 2, 2, 3)]
 
@@ -38,7 +39,8 @@ def test_candidates_against_search() -> None:
 
 @pytest.mark.parametrize(
     ("area", "loop", "alpha", "beta", "expected", "forward"),
-    [  # theory.md §6: (A, cyc, alpha, beta) is not complete for alpha != beta [VERIFIED]
+    # docs/theory/synthesis.md: (A, cyc, alpha, beta) is not complete for alpha != beta [VERIFIED]
+    [
         (45, 5, 3, 18, [C(3, 18, 1, 9), C(3, 18, 2, 3)], (9, 5)),  # 9 forward cycles of length 5
         (48, 6, 4, 16, [C(4, 16, 1, 8), C(4, 16, 2, 4)], (8, 6)),  # 8 forward cycles of length 6
         (54, 6, 3, 21, [C(3, 21, 1, 11), C(3, 21, 2, 4)], None),
@@ -61,11 +63,12 @@ def test_incompleteness_counterexamples(
         family = invariants.forward_cycles(first)
         assert (family.count, family.length) == forward
     assert first.gamma + first.delta != loop and second.gamma + second.delta == loop
-    # and the swapped observables give the swapped answers (theory.md §6 "plus their swaps")
+    # and the swapped observables give the swapped answers (docs/theory/synthesis.md "plus their
+    # swaps")
     assert synthesize(area, loop, beta, alpha) == sorted(p.swap() for p in found)
 
 
-CLASS_TABLES = [  # theory.md §6, non-uniqueness when alpha = beta [VERIFIED]
+CLASS_TABLES = [  # docs/theory/synthesis.md, non-uniqueness when alpha = beta [VERIFIED]
     (12, 4, 3, [[(3, 3, 1, 3), (3, 3, 3, 1)], [(3, 3, 2, 2)]]),
     (15, 5, 3, [[(3, 3, 1, 4), (3, 3, 4, 1)], [(3, 3, 2, 3), (3, 3, 3, 2)]]),
     (18, 6, 3, [[(3, 3, 1, 5), (3, 3, 2, 4), (3, 3, 4, 2), (3, 3, 5, 1)], [(3, 3, 3, 3)]]),
@@ -94,7 +97,7 @@ def test_symmetric_class_tables(
 
 
 def test_symmetric_rule_gamma_mod_alpha() -> None:
-    # theory.md §6: for alpha = beta >= 3 the class is fixed by gamma mod alpha, up to
+    # docs/theory/synthesis.md: for alpha = beta >= 3 the class is fixed by gamma mod alpha, up to
     # gamma <-> cyc - gamma.
     for alpha in range(3, 6):
         for loop in range(2, 11):
@@ -119,7 +122,8 @@ def test_synthesis_recovers_every_small_system() -> None:
 
 
 def test_closed_form_failure_mode() -> None:
-    # theory.md §6: regular cycloid with alpha < beta, C(1,2,1,2): A = 4, cyc = 2; the formula
+    # docs/theory/synthesis.md: regular cycloid with alpha < beta, C(1,2,1,2): A = 4, cyc = 2; the
+    # formula
     # gives delta = 0, so no parameter set; the robust method still finds it.
     assert closed_form_parameters(4, 2, 1, 2) is None
     assert synthesize(4, 2, 1, 2) == [C(1, 2, 1, 2)]

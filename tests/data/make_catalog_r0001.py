@@ -10,7 +10,7 @@ rebuild the file from scratch:
 Rows: every parameter set of area 2..5, grouped into classes by the nauty fingerprint of the
 marked net (zoo.core.canonical.system_form) and into frames by the fingerprint of the unmarked net
 (net_form), cross-checked against the algebraic class and frame keys (zoo.core.algebra); invariants
-from zoo.core.invariants. Ranks follow design.md §2 (by smallest member).
+from zoo.core.invariants. Ranks follow docs/citing.md (by smallest member).
 """
 
 from __future__ import annotations

@@ -5,7 +5,7 @@ The central test exports every class of area <= 30 as PNML, renames every elemen
 their order, and checks that identification finds the same class with a mapping that is an
 actual isomorphism of the two marked graphs. Hand-written nets of our own pipeline scenario are
 checked against an independent construction of the cycloid (folding Z^2 by the integer test of
-theory.md §2.3, written out here) with networkx's isomorphism matcher.
+docs/theory/equivalence.md, written out here) with networkx's isomorphism matcher.
 """
 
 from __future__ import annotations
@@ -24,7 +24,9 @@ from hypothesis import strategies as st
 from networkx.algorithms.isomorphism import DiGraphMatcher
 from typer.testing import CliRunner
 
+from zoo.catalog.build import build_catalog
 from zoo.catalog.enumeration import iter_parameter_sets
+from zoo.catalog.lookup import catalog_lookup
 from zoo.cli import app
 from zoo.cli.app import NOT_A_CYCLOID
 from zoo.core.algebra import class_key
@@ -106,7 +108,8 @@ def as_digraph(net: PlaceTransitionNet) -> nx.DiGraph:
 def independent_cycloid(p: ParameterSet) -> nx.DiGraph:
     """C(p) built from the definition, without zoo's net code.
 
-    Transitions are the classes of Z^2 modulo the lattice (integer test of theory.md §2.3:
+    Transitions are the classes of Z^2 modulo the lattice (integer test of
+    docs/theory/equivalence.md:
     x ~ y iff delta*v_xi - gamma*v_eta = 0 and beta*v_xi + alpha*v_eta = 0 mod A); every
     transition has a forward place to x + (1,0) and a backward place to x + (0,1) (§1); a
     forward place is marked iff its output's level beta*xi + alpha*eta mod A is in 1..beta, a
@@ -127,7 +130,7 @@ def independent_cycloid(p: ParameterSet) -> nx.DiGraph:
     for xi in range(area):  # A*Z^2 lies in the lattice, so this box meets every class
         for eta in range(area):
             find((xi, eta))
-    assert len(reps) == area  # theory.md §2.1: A = |T|
+    assert len(reps) == area  # docs/theory/folding.md: A = |T|
     graph = nx.DiGraph()
     for i, (xi, eta) in enumerate(reps):
         graph.add_node(("t", i), kind="transition", tokens=0)
@@ -174,7 +177,7 @@ def test_every_class_up_to_area_30_survives_export_renaming_and_shuffling() -> N
 
 
 def test_label_is_the_smallest_member_of_the_class() -> None:
-    # design.md §2: the label is the smallest member parameter set of the class.
+    # docs/citing.md: the label is the smallest member parameter set of the class.
     for key, p in class_representatives(12).items():
         answer = identify_net(parse_net_text(net_text(build_net(p)), str(p)), use_catalog=False)
         members = [q for q in iter_parameter_sets(p.area) if class_key(q) == key]
@@ -201,7 +204,8 @@ def test_label_is_the_smallest_member_of_the_class() -> None:
     ids=str,
 )
 def test_hard_synthesis_cases_are_told_apart(p: ParameterSet) -> None:
-    # theory.md §6: (A, cyc, alpha, beta) is not complete for A = 45, 48; alpha = beta classes;
+    # docs/theory/synthesis.md: (A, cyc, alpha, beta) is not complete for A = 45, 48; alpha = beta
+    # classes;
     # §5.1 exceptional pair C(2,2,1,3) ~ C(2,2,2,2). The canonical form decides.
     answer = identify_net(parse_pnml(pnml_document(build_net(p)).encode()), use_catalog=False)
     assert answer.cycloid and answer.params is not None
@@ -240,7 +244,8 @@ def test_any_renaming_gives_the_same_class(values: tuple[int, ...], rng: random.
 
 
 def test_pipeline_ring_with_two_frames_and_one_slot() -> None:
-    # 3 stages, 2 anonymous frames, 1 free slot: theory.md §9 gives C(g, c, 1, 1) = C(1,2,1,1)
+    # 3 stages, 2 anonymous frames, 1 free slot: docs/theory/ring-designs.md gives C(g, c, 1, 1) =
+    # C(1,2,1,1)
     # (anonymous cars and gaps); confirmed here by an independent construction.
     for name in ("pipeline-ring.pnml", "pipeline-ring.mgraph", "pipeline-ring-pages.pnml"):
         foreign = read_net_file(DATA / name)
@@ -254,7 +259,8 @@ def test_pipeline_ring_with_two_frames_and_one_slot() -> None:
 
 
 def test_pipeline_ring_with_individual_frames() -> None:
-    # Frames told apart: theory.md §9 "individual cars" gives C(g, c, c, c) = C(1,2,2,2), A = 6.
+    # Frames told apart: docs/theory/ring-designs.md "individual cars" gives C(g, c, c, c) =
+    # C(1,2,2,2), A = 6.
     foreign = read_net_file(DATA / "pipeline-ring-frames.mgraph")
     answer = identify_net(foreign, use_catalog=False)
     assert answer.cycloid, answer.reason
@@ -503,7 +509,8 @@ def test_random_marked_graphs_agree_with_independent_checks() -> None:
 
 def test_place_bound_matches_simulation() -> None:
     # Commoner et al. 1971: in a live marked graph the bound of a place is the fewest tokens on a
-    # cycle through it. Cycloids are 1-safe (theory.md §3.2), so every bound is exactly 1.
+    # cycle through it. Cycloids are 1-safe (docs/theory/cycles-and-tokens.md), so every bound is
+    # exactly 1.
     for p in [ParameterSet(4, 2, 2, 3), ParameterSet(1, 10, 1, 5), ParameterSet(3, 3, 2, 2)]:
         net = build_net(p)
         assert {place_bound(net, j) for j in range(net.place_count)} == {1}
@@ -514,7 +521,7 @@ def test_place_bound_matches_simulation() -> None:
 
 def test_without_a_catalog_identify_still_answers(tmp_path: Path) -> None:
     location = tmp_path / "missing" / "catalog.sqlite3"
-    answer = identify_file(DATA / "pipeline-ring.pnml", str(location))
+    answer = identify_file(DATA / "pipeline-ring.pnml", catalog_lookup(str(location)))
     assert answer.cycloid and answer.class_id is None
     assert answer.catalog == f"no catalog at {location}"
     assert not location.parent.exists()  # nothing was created, not even the folder
@@ -525,14 +532,16 @@ def test_with_a_catalog_the_class_identifier_is_reported(tmp_path: Path) -> None
 
     location = str(tmp_path / "catalog.sqlite3")
     with Catalog.open(location, create=True) as catalog:
-        catalog.build(8)
+        build_catalog(catalog, 8)
         expected = catalog.get("C(1,2,1,1)").id
-    answer = identify_file(DATA / "pipeline-ring.pnml", location)
+    answer = identify_file(DATA / "pipeline-ring.pnml", catalog_lookup(location))
     assert answer.class_id == expected and answer.catalog == expected
     assert answer.summary().endswith(
         f"C(1,2,1,1) = {expected}: area 3, 2 forward + 1 backward tokens"
     )
-    beyond = identify_net(parse_pnml(pnml_document(build_net(ParameterSet(4, 2, 2, 3)))), location)
+    beyond = identify_net(
+        parse_pnml(pnml_document(build_net(ParameterSet(4, 2, 2, 3)))), catalog_lookup(location)
+    )
     assert beyond.class_id is None and beyond.catalog == "beyond the catalog bound 8"
 
 
@@ -619,7 +628,7 @@ def test_export_of_a_class_identifier_uses_its_label(tmp_path: Path) -> None:
 
     location = str(tmp_path / "catalog.sqlite3")
     with Catalog.open(location, create=True) as catalog:
-        catalog.build(5)
+        build_catalog(catalog, 5)
         entry = catalog.get("C(2,1,1,1)")
     result = runner.invoke(app, ["export", entry.id, "--db", location, "--format", "text"])
     assert result.exit_code == 0, result.output

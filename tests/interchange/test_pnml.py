@@ -147,14 +147,14 @@ SAMPLE = [
         (12, 4, 1, 1),
         (8, 1, 5, 1),
     ]
-]  # theory.md §11 table
+]  # docs/theory/check-values.md table
 
 
 @pytest.mark.parametrize("p", SAMPLE, ids=str)
 def test_export_follows_the_pt_net_grammar(p: ParameterSet) -> None:
     document = pnml_document(build_net(p))
     kinds = check_pnml_structure(document)
-    assert sum(k == "transition" for k in kinds.values()) == p.area  # theory.md §2.1
+    assert sum(k == "transition" for k in kinds.values()) == p.area  # docs/theory/folding.md
     assert sum(k == "place" for k in kinds.values()) == 2 * p.area
     assert sum(k == "arc" for k in kinds.values()) == 4 * p.area
 
@@ -178,12 +178,13 @@ def test_round_trip_gives_the_same_net(p: ParameterSet) -> None:
         expected.add((place, net.transitions[net.post[j]], 1))
     assert {(a.source, a.target, a.weight) for a in read.arcs} == expected
     assert read.name == str(p)
-    assert sum(read.tokens) == p.alpha + p.beta  # theory.md §3.1
+    assert sum(read.tokens) == p.alpha + p.beta  # docs/theory/initial-marking.md
 
 
 @pytest.mark.parametrize("p", SAMPLE, ids=str)
 def test_positions_draw_the_parallelogram_with_time_up(p: ParameterSet) -> None:
-    # theory.md §1 Drawing: x ∝ xi - eta, y ∝ -(xi + eta) on screen; places at arc midpoints.
+    # docs/theory/petri-space.md Drawing: x ∝ xi - eta, y ∝ -(xi + eta) on screen; places at arc
+    # midpoints.
     net = build_net(p)
     at = _positions(pnml_document(net))
     t0 = net.transitions[0]
@@ -334,7 +335,8 @@ def test_dot_export_is_a_graph_of_the_net() -> None:
     edges = re.findall(r'^  "([^"]+)" -> "([^"]+)"', text, flags=re.M)
     assert set(nodes) == set(net.transitions) | set(net.places)
     assert len(edges) == 4 * p.area and set(edges) == set(to_networkx(net).edges)
-    assert text.count("\u25cf") == p.alpha + p.beta  # one dot per token, theory.md §3.1
+    # one dot per token, docs/theory/initial-marking.md
+    assert text.count("\u25cf") == p.alpha + p.beta
 
 
 @pytest.mark.skipif(shutil.which("dot") is None, reason="Graphviz is not installed")
@@ -361,7 +363,8 @@ def test_json_export_describes_the_net() -> None:
     assert set(rebuilt.edges) == set(to_networkx(net).edges)
     assert set(rebuilt.nodes) == set(to_networkx(net).nodes)
     forward = [pl for pl in data["places"] if pl["kind"] == "forward"]
-    assert sum(pl["tokens"] for pl in forward) == p.beta  # theory.md §3.1: beta cars
+    # docs/theory/initial-marking.md: beta cars
+    assert sum(pl["tokens"] for pl in forward) == p.beta
     coordinates = {t["name"]: (t["xi"], t["eta"]) for t in data["transitions"]}
     assert coordinates == dict(zip(net.transitions, net.coordinates, strict=True))
 

@@ -3,8 +3,10 @@ things.
 
 References: the PNG signature (PNG specification, ISO/IEC 15948 §5.2), XML parsing of SVG
 (defusedxml), DOT parsing by pydot (an independent parser of the Graphviz DOT grammar), the
-marking of C(4,2,2,3) listed in theory.md §3.1 [VERIFIED], the reachability graph sizes of
-theory.md §11 [VERIFIED] and the drawing convention of theory.md §1 "Drawing".
+marking of C(4,2,2,3) listed in docs/theory/initial-marking.md [VERIFIED], the reachability graph
+sizes of
+docs/theory/check-values.md [VERIFIED] and the drawing convention of docs/theory/petri-space.md
+"Drawing".
 """
 
 from __future__ import annotations
@@ -19,6 +21,7 @@ import pytest
 from defusedxml import ElementTree
 from typer.testing import CliRunner
 
+from zoo.catalog.build import build_catalog
 from zoo.cli import app
 from zoo.core.algebra import representative
 from zoo.core.params import ParameterSet
@@ -68,7 +71,8 @@ def test_svg_has_one_marker_per_node(view: str) -> None:
     ids = _svg_ids(draw(p, view, "svg"))
     assert ids["transition"] == p.area
     assert ids["place"] == 2 * p.area
-    assert ids["token"] == p.alpha + p.beta  # theory.md §3.1: beta cars and alpha gaps
+    # docs/theory/initial-marking.md: beta cars and alpha gaps
+    assert ids["token"] == p.alpha + p.beta
 
 
 @pytest.mark.parametrize("view", ["parallelogram", "net", "processes", "states"])
@@ -80,7 +84,8 @@ def test_png_signature(view: str) -> None:
 
 
 def test_marked_places_of_the_worked_example() -> None:
-    """theory.md §3.1, C(4,2,2,3): the marked forward places are the forward inputs of t_{1,0}
+    """docs/theory/initial-marking.md, C(4,2,2,3): the marked forward places are the forward inputs
+    of t_{1,0}
     and t_{3,-1}; the marked backward places the backward inputs of t_{1,0}, t_{2,0},
     t_{3,-1}, t_{4,-1}. A place is named after its input transition's representative."""
 
@@ -101,7 +106,8 @@ def test_marked_places_of_the_worked_example() -> None:
 
 
 def test_parallelogram_geometry_follows_the_drawing_convention() -> None:
-    """theory.md §1 "Drawing": time up; forward arcs to the upper right, backward arcs to the
+    """docs/theory/petri-space.md "Drawing": time up; forward arcs to the upper right, backward arcs
+    to the
     upper left; the page position is (xi - eta, xi + eta)."""
     net = net_picture(C4223)
     for arc in parallelogram_arcs(net):
@@ -115,7 +121,7 @@ def test_parallelogram_geometry_follows_the_drawing_convention() -> None:
         # A folded arc's dashed copy stands for the transition the place really leads to.
         assert representative(C4223, arc.target) == net.coordinates[net.post[arc.place]]
         assert arc.folded == (arc.target != net.coordinates[net.post[arc.place]])
-    # theory.md §2.2: O, P, Q = P + R, R.
+    # docs/theory/folding.md: O, P, Q = P + R, R.
     assert parallelogram_corners(C4223) == ((0, 0), (4, -2), (6, 1), (2, 3))
 
 
@@ -123,7 +129,7 @@ def test_dot_net_parses_with_the_right_nodes_and_arcs() -> None:
     text = draw(C4223, "net", "dot").decode()
     (graph,) = pydot.graph_from_dot_data(text)
     nodes = [n for n in graph.get_nodes() if n.get_name() not in {"node", "edge", "graph"}]
-    assert len(nodes) == 3 * C4223.area  # A transitions and 2A places (theory.md §2.1)
+    assert len(nodes) == 3 * C4223.area  # A transitions and 2A places (docs/theory/folding.md)
     assert len(graph.get_edges()) == 4 * C4223.area
     marked = [n for n in nodes if n.get("tokens") == "1"]
     assert len(marked) == C4223.alpha + C4223.beta
@@ -137,7 +143,7 @@ def test_dot_parallelogram_pins_positions() -> None:
 
 
 def test_dot_processes_has_one_cluster_per_process() -> None:
-    p = ParameterSet(3, 2, 6, 6)  # regular, beta = 2 processes (theory.md §7)
+    p = ParameterSet(3, 2, 6, 6)  # regular, beta = 2 processes (docs/theory/processes.md)
     (graph,) = pydot.graph_from_dot_data(draw(p, "processes", "dot").decode())
     clusters = graph.get_subgraphs()
     assert len(clusters) == p.beta
@@ -145,7 +151,7 @@ def test_dot_processes_has_one_cluster_per_process() -> None:
 
 
 def test_states_view_matches_theory_table() -> None:
-    # theory.md §11 table: C(4,2,2,3) has 40 states and 64 edges.
+    # docs/theory/check-values.md table: C(4,2,2,3) has 40 states and 64 edges.
     (graph,) = pydot.graph_from_dot_data(draw(C4223, "states", "dot").decode())
     nodes = [n for n in graph.get_nodes() if n.get_name() not in {"node", "edge", "graph"}]
     assert len(nodes) == 40
@@ -156,7 +162,7 @@ def test_states_view_matches_theory_table() -> None:
 
 
 def test_limits_and_bad_requests() -> None:
-    # theory.md §11: C(12,4,1,1) has 1820 states, over the drawing limit.
+    # docs/theory/check-values.md: C(12,4,1,1) has 1820 states, over the drawing limit.
     with pytest.raises(LimitExceeded, match="1,820 states, over the drawing limit"):
         draw(ParameterSet(12, 4, 1, 1), "states", "svg")
     with pytest.raises(ParameterError, match="needs a regular cycloid"):
@@ -216,7 +222,7 @@ def test_cli_draw_catalog_identifier(tmp_path: Path) -> None:
 
     db = tmp_path / "catalog.sqlite3"
     with Catalog.open(str(db), create=True) as catalog:
-        catalog.build(8)
+        build_catalog(catalog, 8)
         entry = catalog.get("C(2,2,1,3)")
     out = tmp_path / "entry.svg"
     result = CliRunner().invoke(app, ["draw", entry.id, "--db", str(db), "-o", str(out)])
@@ -225,7 +231,7 @@ def test_cli_draw_catalog_identifier(tmp_path: Path) -> None:
 
 
 def test_large_net_png_stays_near_2000_pixels_with_a_readable_title() -> None:
-    """C(7,5,6,8), A = 7*8 + 5*6 = 86 (theory.md §2): the PNG is capped, not 4000 px wide."""
+    """C(7,5,6,8), A = 7*8 + 5*6 = 86 (docs/theory/folding.md): PNG is capped, not 4000 px wide."""
     import io
 
     from PIL import Image
@@ -242,7 +248,8 @@ def test_large_net_png_stays_near_2000_pixels_with_a_readable_title() -> None:
 
 
 def test_backward_places_stay_clear_of_the_chord_envelope() -> None:
-    """One ring (gcd(5, 8) = 1 process, theory.md §7): every backward chord skips the same
+    """One ring (gcd(5, 8) = 1 process, docs/theory/processes.md): every backward chord skips the
+    same
     number of transitions, so all chords touch one inner circle at their midpoints; no
     backward place may sit on that circle, where the chords pile up."""
     from zoo.pictures.views import net_picture, ring_place_points, ring_positions
@@ -267,7 +274,8 @@ def test_backward_places_stay_clear_of_the_chord_envelope() -> None:
 
 
 def test_state_arc_labels_of_crossing_arcs_do_not_coincide() -> None:
-    """C(3,2,2,2): 20 states, 30 arcs (theory.md §10 formula); some arcs cross between two
+    """C(3,2,2,2): 20 states, 30 arcs (docs/theory/state-counts.md formula); some arcs cross between
+    two
     layers, and their labels must not land on the same spot."""
     svg = draw(ParameterSet(3, 2, 2, 2), "states", "svg").decode()
     spots = [

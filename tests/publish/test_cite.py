@@ -35,7 +35,7 @@ def test_catalog_version_is_read_from_the_catalog(small_catalog: str) -> None:
 
 def test_bibtex_fields(small_catalog: str) -> None:
     with Catalog.open(small_catalog) as catalog:
-        entry = catalog.get("C(3,3,1,3)")  # theory.md §11: A = 12
+        entry = catalog.get("C(3,3,1,3)")  # docs/theory/check-values.md: A = 12
         citation = cite(catalog, "C(3,3,1,3)")
     assert citation.identifier == entry.id and citation.label == entry.label
     data = parse_string(citation.bibtex(), "bibtex")

@@ -19,6 +19,7 @@ from pathlib import Path
 import pytest
 from typer.testing import CliRunner
 
+from zoo.catalog.build import build_catalog
 from zoo.catalog.service import Catalog
 from zoo.cli import app
 from zoo.errors import CatalogError, FormatError, ZooError
@@ -205,7 +206,7 @@ def test_cli_release_needs_one_mode() -> None:
 def test_dump_from_each_database(db_url: str, tmp_path: Path) -> None:
     """The dump reads SQLite and PostgreSQL catalogs alike (architecture.md, catalog location)."""
     with Catalog.open(db_url, create=True) as catalog:
-        catalog.build(6)
+        build_catalog(catalog, 6)
         total = sum(s.classes for s in catalog.stats())
         lines = list(iter_dump_lines(iter_catalog_entries(catalog), "jsonl"))
     assert len(lines) == total > 0

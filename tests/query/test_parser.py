@@ -453,7 +453,7 @@ def test_registry_spellings_are_unique_and_examples_parse() -> None:
 
 
 def test_issue_fields_are_present() -> None:
-    # Issue 3 names these fields and levels (design.md §1).
+    # Issue 3 names these fields and levels (docs/theory/isomorphism.md).
     wanted = {
         "area": Level.CLASS, "loop": Level.CLASS, "states": Level.CLASS,
         "processes": Level.READING, "regular": Level.READING, "slowness": Level.READING,

@@ -258,9 +258,10 @@ def test_committed_catalog_holds_real_values(old_catalog: str) -> None:
                 "JOIN parameter_sets p ON p.area = a.area GROUP BY a.area, a.parameter_sets"
             )
         ).all()
-    # theory.md §11 table [VERIFIED]: RG states of C(1,1,1,1), C(2,2,1,1), C(2,3,1,1).
+    # docs/theory/check-values.md table [VERIFIED]: RG states of C(1,1,1,1), C(2,2,1,1), C(2,3,1,1).
     assert (states["C(1,1,1,1)"], states["C(2,2,1,1)"], states["C(2,3,1,1)"]) == ("2", "6", "10")
-    # theory.md §2.4 [VERIFIED A <= 24]: sigma(A) - tau(A) distinct folding lattices of area A.
+    # docs/theory/lattice-key.md [VERIFIED A <= 24]: sigma(A) - tau(A) distinct folding lattices of
+    # area A.
     assert [tuple(row) for row in lattices] == [(2, 1), (3, 2), (4, 4), (5, 4)]
     assert all(recorded == stored for _area, recorded, stored in members)
     engine.dispose()

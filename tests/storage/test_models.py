@@ -54,7 +54,7 @@ def frame_row(p: ParameterSet, rank: int) -> FrameRecord:
         rank=rank,
         label=str(p),
         fingerprint=f"test-frame:{p}",  # storage tests only need distinct fingerprints
-        automorphisms=str(p.area),  # the A translations (theory.md §10)
+        automorphisms=str(p.area),  # the A translations (docs/theory/state-counts.md)
         lattice_g=key.g,
         lattice_r=key.r,
     )
@@ -304,7 +304,8 @@ def test_records_round_trip_with_values_of_c4223(migrated_db_url: str) -> None:
         reading = session.scalars(select(ReadingRecord)).one()
         member = session.scalars(select(ParameterSetRecord)).one()
         frame = session.get(FrameRecord, "FR16-1")
-    # theory.md §11 table, row C(4,2,2,3) [VERIFIED]: A 16, cyc 5, RG 40 states / 64 edges,
+    # docs/theory/check-values.md table, row C(4,2,2,3) [VERIFIED]: A 16, cyc 5, RG 40 states / 64
+    # edges,
     # en/semi 2/2, fwd 1x16 (2), bwd 2x8 (2), NF_bd C(10,1,6,1), NF_ag C(2,5,2,3), w 1/3.
     assert (entry.id, entry.area, entry.loop) == ("CY16-1", 16, 5)
     assert (entry.states, entry.state_arcs) == ("40", "64")
@@ -352,7 +353,8 @@ def test_core_executemany_inserts_get_the_defaults_too(migrated_db_url: str) -> 
 
 def test_exact_big_integers_survive_and_sort_numerically(migrated_db_url: str) -> None:
     engine = open_engine(migrated_db_url)
-    # Reachable-state counts |RG| = A*C(a+b, a)/(a+b) (theory.md §10) from 3 to about 9e58.
+    # Reachable-state counts |RG| = A*C(a+b, a)/(a+b) (docs/theory/state-counts.md) from 3 to about
+    # 9e58.
     ps = [
         ParameterSet(100, 100, 1, 1),
         ParameterSet(12, 4, 1, 1),
@@ -419,7 +421,7 @@ def test_parameters_must_be_positive(migrated_db_url: str) -> None:
 
 
 def test_an_area_is_stored_completely_or_not_at_all(migrated_db_url: str) -> None:
-    """One transaction per area (design.md §2): a failure inside an area leaves no trace of it."""
+    """One transaction per area (docs/citing.md): a failure inside an area leaves no trace of it."""
     engine = open_engine(migrated_db_url)
     with Session(engine) as session, session.begin():
         store(session, ParameterSet(2, 1, 1, 1), rank=1)
@@ -489,7 +491,7 @@ def test_catalog_info_holds_versions_and_creation_time(migrated_db_url: str) -> 
 
 
 def test_a_reader_queries_while_a_build_writes(tmp_path: Path) -> None:
-    """WAL: a reader's snapshot stays valid while a writer commits an area (design.md §2)."""
+    """WAL: a reader's snapshot stays valid while a writer commits an area (docs/citing.md)."""
     url = resolve_location(str(tmp_path / "c.sqlite3"))
     upgrade(url)
     writer_engine, reader_engine = open_engine(url), open_engine(url)

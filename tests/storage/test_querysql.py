@@ -2,9 +2,12 @@
 
 The database is built through the ORM models (``Base.metadata.create_all``) from every
 parameter set of area <= 12 plus the classes of a few large labels whose reachable-state counts
-pass 64 bits (up to C(200,100) > 10^58 at area 200, theory.md §10). Classes, readings and frames
-come from the algebraic keys of ``zoo.core.algebra`` (theory.md §5.1); the invariants from
-``zoo.core.invariants``. The automorphism orders stored here are the typed counts of theory.md §10
+pass 64 bits (up to C(200,100) > 10^58 at area 200, docs/theory/state-counts.md). Classes, readings
+and frames
+come from the algebraic keys of ``zoo.core.algebra`` (docs/theory/isomorphism.md); the invariants
+from
+``zoo.core.invariants``. The automorphism orders stored here are the typed counts of
+docs/theory/state-counts.md
 (gcd(alpha, beta) for the marked net, A for the net): test data for the query layer, which only
 needs consistent rows.
 
@@ -59,7 +62,7 @@ from zoo.storage.querysql import column_clauses, compile_query, sort_clause
 
 FULL_AREAS = 12
 # Large classes: anonymous rings C(g, c, 1, 1) whose state counts C(c+g, c) pass 64 bits
-# (theory.md §9 table, first column).
+# (docs/theory/ring-designs.md table, first column).
 LARGE_LABELS = (
     ParameterSet(30, 30, 1, 1),  # area 60, C(60,30) ~ 1.2e17 states
     ParameterSet(3, 2, 1, 55),  # area 167, a mixed reading pair
@@ -362,7 +365,8 @@ def class_of(p: ParameterSet) -> str:
 
 def test_users_example_finds_three_process_rings(sqlite_engine: Engine) -> None:
     answer = run(sqlite_engine, parse_query("processes = 3 and area < 100"))
-    # C(1,3,1,3) has gcd(beta, delta) = 3 forward cycles, 3 processes (theory.md §7); its
+    # C(1,3,1,3) has gcd(beta, delta) = 3 forward cycles, 3 processes (docs/theory/processes.md);
+    # its
     # swap C(3,1,3,1) has one, so only one reading of the class qualifies.
     assert class_of(ParameterSet(1, 3, 1, 3)) in answer
     assert class_of(ParameterSet(1, 1, 1, 1)) not in answer  # 1 process
@@ -372,7 +376,8 @@ def test_users_example_finds_three_process_rings(sqlite_engine: Engine) -> None:
 
 def test_big_state_counts_compare_exactly(sqlite_engine: Engine) -> None:
     states = invariants.reachable_state_count(ParameterSet(100, 100, 1, 1))
-    assert states > 10**58  # theory.md §10 / design.md §3: 10^58 is passed by area 200
+    # docs/theory/state-counts.md / docs/architecture.md: 10^58 is passed by area 200
+    assert states > 10**58
     (big,) = [c["id"] for c in DATA.classes if c["states"] == str(states)]
     assert run(sqlite_engine, parse_query(f"states = {states}")) == {big}
     assert run(sqlite_engine, parse_query(f"states = {states + 1}")) == set()
@@ -383,7 +388,8 @@ def test_big_state_counts_compare_exactly(sqlite_engine: Engine) -> None:
 
 def test_fractions_compare_exactly_not_in_floating_point(sqlite_engine: Engine) -> None:
     third = run(sqlite_engine, parse_query("slowness = 1/3"))
-    assert class_of(ParameterSet(2, 1, 1, 1)) in third  # w = 1/3 (theory.md §11 table)
+    # w = 1/3 (docs/theory/check-values.md table)
+    assert class_of(ParameterSet(2, 1, 1, 1)) in third
     assert class_of(ParameterSet(1, 1, 1, 1)) not in third  # w = 0
     assert run(sqlite_engine, parse_query("slowness = 0.3333333333")) == set()
     assert run(sqlite_engine, parse_query("slowness = 0.3333333333")) == evaluate(
@@ -488,7 +494,8 @@ def test_column_clauses_show_values_as_text(sqlite_engine: Engine) -> None:
 
 
 def test_rows_keep_reading_conditions_on_one_reading() -> None:
-    # design.md §1: a conjunction holds on one reading. Find a class whose readings split
+    # docs/theory/isomorphism.md: a conjunction holds on one reading. Find a class whose readings
+    # split
     # "regular" and "processes = 1" between them; it must not match their conjunction.
     split = [
         cid
@@ -564,5 +571,5 @@ def test_sort_and_columns_on_postgresql(postgres_engine: Engine) -> None:
         rows = connection.execute(select(ClassRecord.id, *column_clauses(["slowness"])))
         slowness: dict[str, str] = {row[0]: row[1] for row in rows}
     assert ordered[0] == next(c["id"] for c in DATA.classes if c["area"] == 200)
-    # C(2,1,1,1) and its swap C(1,2,1,1) have w = 1/3 and -1/3 (theory.md §11 table).
+    # C(2,1,1,1) and its swap C(1,2,1,1) have w = 1/3 and -1/3 (docs/theory/check-values.md table).
     assert slowness[class_of(ParameterSet(2, 1, 1, 1))] == "-1/3..1/3"

@@ -18,9 +18,9 @@ def test_raw_html_in_markdown_is_escaped() -> None:
 
 
 def test_relative_links_keep_their_folder() -> None:
-    html = render_markdown("[a](area.md) [b](../parameters.md) [c](README.md)", "invariants")
-    assert 'href="/docs/invariants/area"' in html and 'href="/docs/parameters"' in html
-    assert 'href="/docs/invariants"' in html
+    html = render_markdown("[a](folding.md) [b](../parameters.md) [c](README.md)", "theory")
+    assert 'href="/docs/theory/folding"' in html and 'href="/docs/parameters"' in html
+    assert 'href="/docs/theory"' in html
 
 
 def test_links_between_pages_become_addresses() -> None:

@@ -14,6 +14,7 @@ import pydot
 import pytest
 from typer.testing import CliRunner
 
+from zoo.catalog.build import build_catalog
 from zoo.cli import app
 
 DATA = Path(__file__).resolve().parents[1] / "data" / "pnml"
@@ -224,7 +225,7 @@ def test_read_only_on_postgresql(postgres_url: str, web_catalog: str) -> None:
     from zoo.web.catalog_access import open_read_only
 
     with Catalog.open(postgres_url, create=True) as catalog:
-        catalog.build(6)
+        build_catalog(catalog, 6)
     with Catalog.open(web_catalog) as on_sqlite:
         expected = on_sqlite.find("area <= 6", limit=0).total
     catalog = open_read_only(postgres_url)

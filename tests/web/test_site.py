@@ -14,6 +14,7 @@ from typing import Any
 import pytest
 from typer.testing import CliRunner
 
+from zoo.catalog.build import build_catalog
 from zoo.cli import app
 
 runner = CliRunner()
@@ -25,7 +26,7 @@ def site_folder(tmp_path_factory: pytest.TempPathFactory) -> Path:
 
     location = str(tmp_path_factory.mktemp("site-catalog") / "catalog.sqlite3")
     with Catalog.open(location, create=True) as catalog:
-        catalog.build(6)
+        build_catalog(catalog, 6)
     folder = tmp_path_factory.mktemp("site") / "public"
     result = runner.invoke(app, ["site", str(folder), "--db", location])
     assert result.exit_code == 0, result.output

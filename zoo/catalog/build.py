@@ -4,12 +4,12 @@ A build classifies one area at a time (``zoo.catalog.classify``, in worker proce
 1) and writes each area in one transaction together with its row in ``areas``; the writer is this
 process alone. So an interrupted build leaves complete areas only, the next build resumes with the
 first missing area, and building further never touches an area already stored: identifiers never
-change (design.md §2). Reading the catalog is ``zoo.catalog.service``'s concern::
+change (docs/citing.md). Reading the catalog is ``zoo.catalog.service``'s concern::
 
     from zoo.catalog.build import build_catalog
     from zoo.catalog.service import Catalog
     with Catalog.open("catalog.sqlite3", create=True) as catalog:
-        report = build_catalog(catalog, 40, jobs=2)     # the same as catalog.build(40, jobs=2)
+        report = build_catalog(catalog, 40, jobs=2)
 """
 
 from __future__ import annotations
@@ -30,7 +30,7 @@ from zoo.catalog import service as catalog_service
 from zoo.catalog.classify import AreaClassification, ClassSummary, classify_area
 from zoo.catalog.enumeration import parameter_set_count
 from zoo.catalog.seeds import Seed, load_seed_directory
-from zoo.catalog.service import AreaStats, Catalog, stored_class_id
+from zoo.catalog.service import MAX_BUILD_AREA, AreaStats, Catalog, stored_class_id
 from zoo.errors import CatalogError, ParameterError
 from zoo.storage import database
 from zoo.storage.models import Base, sortable_key
@@ -52,8 +52,6 @@ __all__ = [
 #: Readings get the explicit id area * READING_ID_STRIDE + index, so that the same build gives
 #: the same ids whatever was interrupted before (PostgreSQL sequences do not roll back).
 READING_ID_STRIDE = 100_000
-#: Largest area a build accepts: beyond it a full enumeration is hours of nauty work.
-MAX_BUILD_AREA = 2_000
 
 _TABLES = Base.metadata.tables
 _INFO = _TABLES["catalog_info"]

@@ -1,14 +1,17 @@
 """Classification of one area: parameter sets -> readings -> classes -> frames, checked by nauty.
 
-The four levels of sameness are those of design.md §1. The partition is computed algebraically
-(``algebra.reading_key``, ``class_key``, ``frame_key``; theory.md §5.1) and then confirmed with
+The four levels of sameness are those of docs/theory/isomorphism.md. The partition is computed
+algebraically
+(``algebra.reading_key``, ``class_key``, ``frame_key``; docs/theory/isomorphism.md) and then
+confirmed with
 nauty canonical forms (``canonical.system_form`` and ``net_form``):
 
 * parameter sets with equal reading keys have the same lattice and the same (alpha, beta), so
   they define literally the same system (the initial marking depends only on the level function
-  beta*xi + alpha*eta, theory.md §3.1): no check is needed;
+  beta*xi + alpha*eta, docs/theory/initial-marking.md): no check is needed;
 * a class whose readings are one reading and its swap is merged by an explicit isomorphism,
-  (xi, eta) -> (eta, xi) (theory.md §5.1); every other merge (the exceptional (2,-2) family) is
+  (xi, eta) -> (eta, xi) (docs/theory/isomorphism.md); every other merge (the exceptional (2,-2)
+  family) is
   checked by computing the canonical form of every reading: they must all agree;
 * one canonical form per class (of its label) must differ from that of every other class of
   the area, which catches a class the algebra split wrongly;

@@ -1,6 +1,7 @@
 """Enumeration of parameter sets by area: every (alpha, beta, gamma, delta) >= 1 of a given area.
 
-The area of C(alpha, beta, gamma, delta) is A = alpha*delta + beta*gamma (theory.md §2.1), so
+The area of C(alpha, beta, gamma, delta) is A = alpha*delta + beta*gamma (docs/theory/folding.md),
+so
 the parameter sets of area A are the ordered ways of writing A = j + (A - j) with j = alpha*delta
 and A - j = beta*gamma. Their number is sum_{j=1}^{A-1} d(j)*d(A-j), d the divisor-count
 function: OEIS A055507 at index A-1 (checked against the sequence's published terms and against
@@ -88,7 +89,7 @@ def parameter_set_count(area: int) -> int:
 
 
 def cumulative_parameter_set_count(max_area: int) -> int:
-    """The number of parameter sets of area at most max_area (25,331 for 60, design.md §3)."""
+    """The number of parameter sets of area at most max_area (25,331 for 60)."""
     if max_area < 1:
         return 0
     return sum(parameter_set_count(a) for a in range(1, max_area + 1))

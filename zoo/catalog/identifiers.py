@@ -1,4 +1,4 @@
-"""Catalog identifiers, labels and their parsing (design.md §2, docs/citing.md).
+"""Catalog identifiers, labels and their parsing (docs/citing.md, docs/citing.md).
 
 * A class identifier is ``CY{area}-{rank}``: the area and the 1-based rank of the class among
   all classes of that area, ordered by their smallest member parameter set (lexicographic on

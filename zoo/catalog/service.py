@@ -5,7 +5,7 @@ This is the Python API that the command line (``zoo/cli/catalog.py``), ``zoo sho
 
     from zoo.catalog.service import Catalog
     with Catalog.open("catalog.sqlite3", create=True) as catalog:
-        catalog.build(40)
+        build_catalog(catalog, 40)        # zoo.catalog.build
         result = catalog.find("processes = 3 and area < 30", sort="loop", limit=5)
         entry = catalog.get("CY16-3")          # or a label / any member: "C(4,2,2,3)"
         for entry in catalog.iter_entries():   # every class, by area then rank, streamed
@@ -25,7 +25,7 @@ from fractions import Fraction
 from functools import partial
 from pathlib import Path
 from types import TracebackType
-from typing import TYPE_CHECKING, Any
+from typing import Any
 
 from sqlalchemy import Engine, and_, func, or_, select
 from sqlalchemy.engine import Connection
@@ -45,10 +45,6 @@ from zoo.storage.models import (
     SeedRecord,
 )
 
-if TYPE_CHECKING:
-    from zoo.catalog.build import BuildProgress, BuildReport
-    from zoo.catalog.seeds import Seed
-
 __all__ = [
     "DEFAULT_MAX_AREA",
     "AreaStats",
@@ -64,6 +60,8 @@ __all__ = [
     "lookup_class_id",
 ]
 
+#: Largest area a build accepts: beyond it a full enumeration is hours of nauty work.
+MAX_BUILD_AREA = 2_000
 #: The area up to which ``zoo find`` builds a catalog when none exists yet (issue 3).
 DEFAULT_MAX_AREA = 100
 _CHUNK = 900  # bound parameters per IN (...) list, below SQLite's historical limit of 999
@@ -99,7 +97,8 @@ class SeedEntry:
 
 @dataclass(frozen=True)
 class ClassEntry:
-    """A catalog entry: an isomorphism class of marked nets, places untyped (design.md §1)."""
+    """A catalog entry: an isomorphism class of marked nets, places untyped
+    (docs/theory/isomorphism.md)."""
 
     id: str
     label: str
@@ -233,18 +232,14 @@ def build_command(max_area: int, location: str | None = None) -> str:
     """The ``zoo build`` command that extends the catalog at ``location`` to ``max_area``.
 
     ``--db`` is named unless ``location`` is the catalog zoo opens anyway; the bound is capped
-    at the build limit ``zoo.catalog.build.MAX_BUILD_AREA``.
+    at the build limit ``MAX_BUILD_AREA``.
     """
-    from zoo.catalog.build import MAX_BUILD_AREA
-
     db = "" if location is None else database.db_option(location)
     return f"zoo build --max-area {min(max_area, MAX_BUILD_AREA)}{db}"
 
 
 def extend_advice(area: int, location: str | None = None) -> str:
     """``extend with: zoo build ...``, saying so when ``area`` is beyond the build limit."""
-    from zoo.catalog.build import MAX_BUILD_AREA
-
     advice = f"extend with: {build_command(area, location)}"
     if area > MAX_BUILD_AREA:
         advice += f"; areas above the build limit {MAX_BUILD_AREA:,} cannot be built"
@@ -350,21 +345,6 @@ class Catalog:
         with self.engine.connect() as connection:
             rows = connection.execute(select(CatalogInfo.key, CatalogInfo.value))
             return {key: value for key, value in rows}
-
-    # build
-
-    def build(
-        self,
-        max_area: int,
-        jobs: int = 1,
-        progress: BuildProgress | None = None,
-        *,
-        seeds: Sequence[Seed] | None = None,
-    ) -> BuildReport:
-        """Store every area 1..max_area not stored yet: ``zoo.catalog.build.build_catalog``."""
-        from zoo.catalog.build import build_catalog
-
-        return build_catalog(self, max_area, jobs, progress, seeds=seeds)
 
     # reading
 
@@ -634,6 +614,21 @@ class Catalog:
                 )
             )
         return entries
+
+
+def describe_location(location: str | None = None) -> tuple[str, bool]:
+    """How the catalog at ``location`` (``--db``, else $ZOO_CATALOG, else the default file) is
+    named to the user, and whether a catalog exists there; creates nothing but its folder."""
+    url = database.resolve_location(location)
+    return database.display_location(url), database.catalog_exists(url)
+
+
+def migrate_catalog(location: str | None = None) -> tuple[str, str | None, str | None]:
+    """Create or upgrade the schema of the catalog at ``location``: (name, revision before,
+    revision after); no data is lost (``zoo migrate``)."""
+    url = database.resolve_location(location)
+    change = database.upgrade(url)
+    return database.display_location(url), change.before, change.after
 
 
 # --- module-level helpers ------------------------------------------------------------------

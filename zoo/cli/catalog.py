@@ -213,7 +213,7 @@ def build(
 
     Example: zoo build --max-area 60 --jobs 2
     """
-    from zoo.catalog.build import default_jobs
+    from zoo.catalog.build import build_catalog, default_jobs
     from zoo.catalog.service import Catalog
 
     try:
@@ -222,7 +222,7 @@ def build(
         raise fail(exc) from None
     try:
         report = _run_build(
-            lambda bar: catalog.build(max_area, jobs=jobs or default_jobs(), progress=bar)
+            lambda bar: build_catalog(catalog, max_area, jobs=jobs or default_jobs(), progress=bar)
         )
     finally:
         catalog.close()
@@ -279,7 +279,6 @@ def find(
     """
     from zoo.catalog import service as catalog_service
     from zoo.catalog.build import ensure_catalog
-    from zoo.storage.database import catalog_exists, display_location, resolve_location
 
     try:
         # A mistyped query must fail at once, not after building the default catalog.
@@ -290,10 +289,10 @@ def find(
         if sort:
             parse_sort_key(sort)
         _requested_columns(columns)
-        url = resolve_location(db)
-        if not catalog_exists(url):
+        shown, exists = catalog_service.describe_location(db)
+        if not exists:
             typer.echo(
-                f"No catalog at {display_location(url)} yet: building areas "
+                f"No catalog at {shown} yet: building areas "
                 f"1..{catalog_service.DEFAULT_MAX_AREA} "
                 "once (later queries answer at once).",
                 err=True,
@@ -671,15 +670,13 @@ def migrate(db: CatalogOption = None) -> None:
 
     Example: zoo migrate --db catalog.sqlite3
     """
-    from zoo.storage import database
+    from zoo.catalog.service import migrate_catalog
 
     try:
-        url = database.resolve_location(db)
-        change = database.upgrade(url)
+        shown, before, after = migrate_catalog(db)
     except ZooError as exc:
         raise fail(exc) from None
-    shown = database.display_location(url)
-    if change.changed:
-        typer.echo(f"Catalog {shown}: schema revision {change.before or 'none'} -> {change.after}.")
+    if before != after:
+        typer.echo(f"Catalog {shown}: schema revision {before or 'none'} -> {after}.")
     else:
-        typer.echo(f"Catalog {shown}: schema revision {change.after} is current; nothing to do.")
+        typer.echo(f"Catalog {shown}: schema revision {after} is current; nothing to do.")

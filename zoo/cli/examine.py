@@ -229,7 +229,7 @@ def _group_name(group: list[int]) -> str:
 
 
 def _group_text(group: list[int], class_group: list[int]) -> str:
-    # The two differ only in the exceptional family of theory.md §5.1.
+    # The two differ only in the exceptional family of docs/theory/isomorphism.md.
     if group == class_group:
         return _group_name(group)
     return f"{_group_name(group)} (class: {_group_name(class_group)})"

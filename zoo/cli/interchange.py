@@ -185,12 +185,13 @@ def identify(
 
     Example: zoo identify ring.pnml --format json
     """
+    from zoo.catalog.lookup import catalog_lookup
     from zoo.interchange.identify import identify_file
 
     unreadable = not_cycloid = 0
     for path in files:
         try:
-            answer = identify_file(path, db, use_catalog=not no_catalog)
+            answer = identify_file(path, None if no_catalog else catalog_lookup(db))
         except ZooError as exc:
             # One unreadable file must not stop the others: report it now, fail at the end.
             unreadable += 1

@@ -2,10 +2,11 @@
 
 The cycloid is the quotient of the Petri space Z^2 by the lattice L spanned by the columns
 P = (alpha, -beta) and R = (gamma, delta) of the cycloid matrix ([P18] §2; [LA24] Thm 4, via
-review; theory.md §2). Everything here is integer arithmetic on four numbers: no net is built.
+review; docs/theory/folding.md). Everything here is integer arithmetic on four numbers: no net is
+built.
 
 The classification functions at the end give the *algebraic* answer to the four levels of
-sameness of design.md §1; the catalog build confirms every one of them with nauty.
+sameness of docs/theory/isomorphism.md; the catalog build confirms every one of them with nauty.
 """
 
 from __future__ import annotations
@@ -32,7 +33,8 @@ def _extended_gcd(a: int, b: int) -> tuple[int, int, int]:
 
 
 def area(p: ParameterSet) -> int:
-    """A = det [[alpha, gamma], [-beta, delta]] = alpha*delta + beta*gamma = |T| (theory.md §2.1).
+    """A = det [[alpha, gamma], [-beta, delta]] = alpha*delta + beta*gamma = |T|
+    (docs/theory/folding.md).
 
     >>> area(ParameterSet(4, 2, 2, 3))
     16
@@ -41,7 +43,8 @@ def area(p: ParameterSet) -> int:
 
 
 def cycloid_matrix(p: ParameterSet) -> tuple[tuple[int, int], tuple[int, int]]:
-    """The cycloid matrix [[alpha, gamma], [-beta, delta]] whose columns span L (theory.md §2.1)."""
+    """The cycloid matrix [[alpha, gamma], [-beta, delta]] whose columns span L
+    (docs/theory/folding.md)."""
     return ((p.alpha, p.gamma), (-p.beta, p.delta))
 
 
@@ -60,7 +63,8 @@ def step_counts(p: ParameterSet, v: Point) -> tuple[Fraction, Fraction]:
 
 
 def are_equivalent(p: ParameterSet, x1: Point, x2: Point) -> bool:
-    """Whether the Petri-space points x1 and x2 fold onto the same node of C(p) (theory.md §2.3).
+    """Whether the Petri-space points x1 and x2 fold onto the same node of C(p)
+    (docs/theory/equivalence.md).
 
     >>> are_equivalent(ParameterSet(4, 2, 2, 3), (6, 1), (0, 0))
     True
@@ -71,7 +75,8 @@ def are_equivalent(p: ParameterSet, x1: Point, x2: Point) -> bool:
 
 
 def representative(p: ParameterSet, x: Point) -> Point:
-    """The representative of x in the half-open fundamental parallelogram (theory.md §2.3).
+    """The representative of x in the half-open fundamental parallelogram
+    (docs/theory/equivalence.md).
 
     The parallelogram is {(xi, eta): 0 <= delta*xi - gamma*eta < A, 0 <= beta*xi + alpha*eta < A};
     it holds exactly one point of every class. [Derived; checked against explicit folding in
@@ -88,7 +93,7 @@ def representative(p: ParameterSet, x: Point) -> Point:
 
 
 def parallelogram_points(p: ParameterSet) -> list[Point]:
-    """All A points of the half-open fundamental parallelogram, sorted (theory.md §2.3).
+    """All A points of the half-open fundamental parallelogram, sorted (docs/theory/equivalence.md).
 
     For each column xi the two strip conditions bound eta to an interval, so the work is
     proportional to A, not to the bounding box of the parallelogram (which can be far larger,
@@ -113,7 +118,8 @@ def parallelogram_points(p: ParameterSet) -> list[Point]:
 
 
 def level(p: ParameterSet, x: Point) -> int:
-    """The level L(xi, eta) = beta*xi + alpha*eta of a Petri-space point (theory.md §3.1).
+    """The level L(xi, eta) = beta*xi + alpha*eta of a Petri-space point
+    (docs/theory/initial-marking.md).
 
     L(P) = 0 and L(R) = A, so levels of nodes of the cycloid are defined modulo A; the initial
     marking cuts the Petri space between level 0 and level 1.
@@ -122,7 +128,8 @@ def level(p: ParameterSet, x: Point) -> int:
 
 
 def points_at_level(p: ParameterSet, value: int) -> list[Point]:
-    """The representatives t with L(t) = value, for 0 <= value < A, sorted (theory.md §3.1).
+    """The representatives t with L(t) = value, for 0 <= value < A, sorted
+    (docs/theory/initial-marking.md).
 
     With e = gcd(alpha, beta) there are e of them when e divides the value and none otherwise:
     the solutions of beta*xi + alpha*eta = value step by (alpha/e, -beta/e), which moves
@@ -146,7 +153,7 @@ def points_at_level(p: ParameterSet, value: int) -> list[Point]:
 
 def is_sublattice(fine: ParameterSet, coarse: ParameterSet) -> bool:
     """Whether L(fine) is contained in L(coarse), i.e. the equivalence of C(fine) refines that of
-    C(coarse) and C(fine) covers C(coarse) (theory.md §8).
+    C(coarse) and C(fine) covers C(coarse) (docs/theory/iterations.md).
 
     L' is contained in L iff both generators of L' pass the integer test of L.
 
@@ -161,7 +168,8 @@ def is_sublattice(fine: ParameterSet, coarse: ParameterSet) -> bool:
 
 @dataclass(frozen=True, order=True)
 class LatticeKey:
-    """(A, g, r): the Hermite basis {(A/g, 0), (r, g)} of the folding lattice (theory.md §2.4).
+    """(A, g, r): the Hermite basis {(A/g, 0), (r, g)} of the folding lattice
+    (docs/theory/lattice-key.md).
 
     Equal keys <=> equal lattices <=> isomorphic nets with forward and backward places told
     apart. [Derived; checked against nauty in tests.]
@@ -194,7 +202,7 @@ class LatticeKey:
 
 
 def lattice_key(p: ParameterSet) -> LatticeKey:
-    """The lattice key (A, g, r) of C(p) (theory.md §2.4).
+    """The lattice key (A, g, r) of C(p) (docs/theory/lattice-key.md).
 
     g = gcd(beta, delta); solve -x*beta + y*delta = g, then r = (x*alpha + y*gamma) mod A/g.
 
@@ -208,16 +216,19 @@ def lattice_key(p: ParameterSet) -> LatticeKey:
 
 
 def swap(p: ParameterSet) -> ParameterSet:
-    """C(beta, alpha, delta, gamma), isomorphic to C(p) by (xi, eta) -> (eta, xi) (theory.md §5.1).
+    """C(beta, alpha, delta, gamma), isomorphic to C(p) by (xi, eta) -> (eta, xi)
+    (docs/theory/isomorphism.md).
 
     The mirror exchanges forward and backward places and maps M0 onto the initial marking of
-    the swapped cycloid, so both are the same class (design.md §1) but different readings.
+    the swapped cycloid, so both are the same class (docs/theory/isomorphism.md) but different
+    readings.
     """
     return p.swap()
 
 
 def normal_form_beta_delta(p: ParameterSet) -> ParameterSet:
-    """NF_betadelta = C(p - r, g, r, g): the end of beta-/delta-reductions (theory.md §5.2).
+    """NF_betadelta = C(p - r, g, r, g): the end of beta-/delta-reductions
+    (docs/theory/normal-forms.md).
 
     >>> str(normal_form_beta_delta(ParameterSet(4, 2, 2, 3)))
     'C(10,1,6,1)'
@@ -227,7 +238,8 @@ def normal_form_beta_delta(p: ParameterSet) -> ParameterSet:
 
 
 def normal_form_alpha_gamma(p: ParameterSet) -> ParameterSet:
-    """NF_alphagamma = C(h, q - s, h, s): the end of alpha-/gamma-reductions (theory.md §5.2).
+    """NF_alphagamma = C(h, q - s, h, s): the end of alpha-/gamma-reductions
+    (docs/theory/normal-forms.md).
 
     h = gcd(alpha, gamma), q = A/h and s in (0, q) with (h, s) in L.
 
@@ -241,7 +253,8 @@ def normal_form_alpha_gamma(p: ParameterSet) -> ParameterSet:
 
 
 def transition_group(p: ParameterSet) -> tuple[int, int]:
-    """Smith normal form (d1, A/d1) of the cycloid matrix: T = Z_d1 x Z_(A/d1) (theory.md §2.4).
+    """Smith normal form (d1, A/d1) of the cycloid matrix: T = Z_d1 x Z_(A/d1)
+    (docs/theory/lattice-key.md).
 
     d1 = gcd(alpha, beta, gamma, delta); the group is cyclic iff d1 = 1. [Checked against
     sympy's smith_normal_form in tests.]
@@ -251,7 +264,7 @@ def transition_group(p: ParameterSet) -> tuple[int, int]:
 
 
 def iterate(p: ParameterSet, n: int) -> ParameterSet:
-    """The n-fold temporal iteration C(alpha, beta, n*gamma, n*delta) (theory.md §8)."""
+    """The n-fold temporal iteration C(alpha, beta, n*gamma, n*delta) (docs/theory/iterations)."""
     return ParameterSet(p.alpha, p.beta, n * p.gamma, n * p.delta)
 
 
@@ -260,7 +273,8 @@ def iteration_depth(p: ParameterSet) -> int:
 
     The parameter sets of the same system (same lattice, same alpha and beta) are the
     C(alpha, beta, gamma + k*alpha, delta - k*beta) with both last entries positive (delta- and
-    gamma-steps keep the marking, theory.md §5.2). C(p) is an n-fold iteration iff one of them
+    gamma-steps keep the marking, docs/theory/normal-forms.md). C(p) is an n-fold iteration iff one
+    of them
     has n | gcd(gamma', delta'). [Derived; checked against a search over all smaller systems in
     tests/core/test_algebra.py.]
     """
@@ -272,19 +286,22 @@ def iteration_depth(p: ParameterSet) -> int:
     return best
 
 
-# --- classification (design.md §1) ---------------------------------------------------------
+# --- classification (docs/theory/isomorphism.md)
+# ---------------------------------------------------------
 
 ReadingKey = tuple[int, int, int, int, int]  # (A, g, r, alpha, beta)
 
 
 def reading_key(p: ParameterSet) -> ReadingKey:
-    """Same reading <=> same lattice and same (alpha, beta) (theory.md §5.1, typed systems)."""
+    """Same reading <=> same lattice and same (alpha, beta) (docs/theory/isomorphism.md, typed
+    systems)."""
     key = lattice_key(p)
     return (key.area, key.g, key.r, p.alpha, p.beta)
 
 
 def _exceptional_lattices(a: int) -> tuple[LatticeKey, LatticeKey] | None:
-    """The two lattices merged by the (2,-2) family at area A = 4k, k >= 2 (theory.md §5.1)."""
+    """The two lattices merged by the (2,-2) family at area A = 4k, k >= 2
+    (docs/theory/isomorphism.md)."""
     if a % 4 or a < 8:
         return None
     k = a // 4
@@ -294,10 +311,12 @@ def _exceptional_lattices(a: int) -> tuple[LatticeKey, LatticeKey] | None:
 
 
 def class_key(p: ParameterSet) -> ReadingKey:
-    """The algebraic class key: isomorphic marked nets, places not typed (design.md §1).
+    """The algebraic class key: isomorphic marked nets, places not typed
+    (docs/theory/isomorphism.md).
 
     Minimum of the reading keys of p and its swap, merged along the exceptional family
-    C(2,2,1,2k-1) ~ C(2,2,2,2k-2) (theory.md §5.1, verified with nauty for A <= 60 there and
+    C(2,2,1,2k-1) ~ C(2,2,2,2k-2) (docs/theory/isomorphism.md, verified with nauty for A <= 60 there
+    and
     in tests/core/test_algebra.py). With alpha = beta = 2 and A = 4k the parameter sets are the
     C(2,2,gamma,2k-gamma); delta-steps make every odd gamma one reading and every even gamma
     another, and the exception joins the two, so all of them are one class.
@@ -314,7 +333,8 @@ def class_key(p: ParameterSet) -> ReadingKey:
 
 
 def frame_key(p: ParameterSet) -> LatticeKey:
-    """The algebraic frame key: isomorphic unmarked nets (design.md §1, theory.md §5.1).
+    """The algebraic frame key: isomorphic unmarked nets (docs/theory/isomorphism.md,
+    docs/theory/isomorphism.md).
 
     The smaller lattice key of p and of its swap; at A = 4k the frames of C(2,2,2,2k-2) and of
     C(2,2,1,2k-1) are merged (the exceptional family), onto the latter's key.
@@ -333,10 +353,11 @@ def frame_key(p: ParameterSet) -> LatticeKey:
 
 
 def class_reading_representatives(p: ParameterSet) -> list[ParameterSet]:
-    """One parameter set of every reading in the class of p, sorted (design.md §1).
+    """One parameter set of every reading in the class of p, sorted (docs/theory/isomorphism.md).
 
     A class holds the reading of p and that of its swap, except in the exceptional family of
-    theory.md §5.1, where C(2,2,1,2k-1) and C(2,2,2,2k-2) (and their swaps) are one class.
+    docs/theory/isomorphism.md, where C(2,2,1,2k-1) and C(2,2,2,2k-2) (and their swaps) are one
+    class.
     """
     members = {p, p.swap()}
     if p.alpha == 2 and p.beta == 2 and _exceptional_lattices(p.area) is not None:
@@ -348,7 +369,8 @@ def class_reading_representatives(p: ParameterSet) -> list[ParameterSet]:
 
 def class_iteration_depth(p: ParameterSet) -> int:
     """The largest n such that the *class* of p is an n-fold iteration: the maximum of
-    ``iteration_depth`` over its readings (theory.md §8 with the classes of design.md §1).
+    ``iteration_depth`` over its readings (docs/theory/iterations.md with the classes of
+    docs/theory/isomorphism.md).
 
     It differs from ``iteration_depth(p)`` only in the exceptional family: C(2,2,1,3) is no
     iteration as a parameter set, but it is isomorphic to C(2,2,2,2) = iterate(C(2,2,1,1), 2).

@@ -3,12 +3,13 @@
 Two marked graphs get the same canonical text iff they are isomorphic: a bijection of
 transitions and of places that keeps every arc, and with ``marked=True`` also the initial
 tokens, and with ``typed=True`` also the place colours (forward/backward for a cycloid). The
-levels are those of design.md §1: ``system_form`` (marked, untyped) decides classes,
+levels are those of docs/theory/isomorphism.md: ``system_form`` (marked, untyped) decides classes,
 ``net_form`` (unmarked, untyped) decides frames.
 
 The net goes to nauty (McKay and Piperno, "Practical graph isomorphism II", J. Symbolic
 Computation 60 (2014), through pynauty) as an *undirected* coloured graph, because nauty's
-directed mode is pathologically slow on these nets (design.md §3): a vertex per transition, and
+directed mode is pathologically slow on these nets (docs/architecture.md): a vertex per transition,
+and
 each place split into a tail vertex (adjacent to its input transition) and a head vertex
 (adjacent to its output transition) joined by an edge. The text is read off nauty's canonical
 labelling and never contains nauty's raw certificate, whose bytes depend on the machine word
@@ -192,7 +193,7 @@ def encoding_graph(
     typed: bool = False,
     place_colours: Sequence[str] | None = None,
 ) -> EncodingGraph:
-    """The undirected coloured graph that encodes ``graph`` for nauty (design.md §3).
+    """The undirected coloured graph that encodes ``graph`` for nauty (docs/architecture.md).
 
     Cells, in this order: reduced transitions by label; tails by place label; heads by place
     label; labels in increasing order (docs/canonical-encoding.md §3).
@@ -341,7 +342,7 @@ def canonical_form(
     >>> form = canonical_form(net)
     >>> form.text.split(" | ")[0], form.automorphisms
     ('zoo-canon v1 system untyped T=16 P=32', 2)
-    >>> canonical_form(net, typed=True).automorphisms  # gcd(4, 2), theory.md §10
+    >>> canonical_form(net, typed=True).automorphisms  # gcd(4, 2), docs/theory/state-counts.md
     2
     """
     import pynauty
@@ -372,12 +373,14 @@ def canonical_form(
 
 
 def system_form(p: ParameterSet) -> CanonicalForm:
-    """Canonical form of the marked system C(p), places untyped: decides classes (design.md §1)."""
+    """Canonical form of the marked system C(p), places untyped: decides classes
+    (docs/theory/isomorphism.md)."""
     return canonical_form(build_net(p), marked=True)
 
 
 def net_form(p: ParameterSet) -> CanonicalForm:
-    """Canonical form of the unmarked net of C(p), places untyped: decides frames (design.md §1)."""
+    """Canonical form of the unmarked net of C(p), places untyped: decides frames
+    (docs/theory/isomorphism.md)."""
     return canonical_form(build_net(p), marked=False)
 
 

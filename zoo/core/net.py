@@ -2,16 +2,20 @@
 
 A *marked graph* (T-system) is a Petri net in which every place has exactly one input and one
 output transition; a cycloid system C(alpha, beta, gamma, delta) is one ([RS24] introduction,
-theory.md §1-§3). ``MarkedGraph`` holds any such net, also foreign ones read from files;
+docs/theory/petri-space.md, docs/theory/folding.md, docs/theory/equivalence.md,
+docs/theory/initial-marking.md). ``MarkedGraph`` holds any such net, also foreign ones read from
+files;
 ``build_net`` builds the cycloid's own net with the naming of docs/architecture.md:
 
 * transition ``t_{xi}_{eta}`` for every point (xi, eta) of the half-open fundamental
-  parallelogram ``0 <= delta*xi - gamma*eta < A, 0 <= beta*xi + alpha*eta < A`` (theory.md §2.3),
+  parallelogram ``0 <= delta*xi - gamma*eta < A, 0 <= beta*xi + alpha*eta < A``
+  (docs/theory/equivalence.md),
   in sorted order of (xi, eta), the order of ``algebra.parallelogram_points``;
 * places ``f_{xi}_{eta}`` (forward, to the representative of (xi+1, eta)) at indices 0..A-1 and
   ``b_{xi}_{eta}`` (backward, to the representative of (xi, eta+1)) at indices A..2A-1, both
   in the order of their input transition;
-* the initial marking in the convention-free form of theory.md §3.1: a forward place is marked
+* the initial marking in the convention-free form of docs/theory/initial-marking.md: a forward
+  place is marked
   iff its output transition t has L(t) mod A in {1..beta}, a backward place iff L(t) mod A in
   {1..alpha}, where L(xi, eta) = beta*xi + alpha*eta.
 """
@@ -149,7 +153,8 @@ class MarkedGraph:
 
 @dataclass(frozen=True)
 class CycloidNet(MarkedGraph):
-    """The explicit net of the cycloid system C(params) (theory.md §2-§3).
+    """The explicit net of the cycloid system C(params) (docs/theory/folding.md,
+    docs/theory/equivalence.md, docs/theory/initial-marking.md).
 
     ``coordinates[i]`` is the representative (xi, eta) of transition i in the fundamental
     parallelogram; ``kinds[j]`` is ``"forward"`` or ``"backward"`` for place j.
@@ -179,7 +184,8 @@ class CycloidNet(MarkedGraph):
         return {point: i for i, point in enumerate(self.coordinates)}
 
     def transition_at(self, point: Point) -> int:
-        """Index of the transition that the Petri-space point folds onto (theory.md §2.3)."""
+        """Index of the transition that the Petri-space point folds onto
+        (docs/theory/equivalence.md)."""
         return self._index_of[_representative(self.params, point)]
 
 
@@ -193,7 +199,7 @@ def _representative(p: ParameterSet, x: Point) -> Point:
 
 
 def fundamental_points(p: ParameterSet) -> list[Point]:
-    """The A points of the half-open fundamental parallelogram, sorted (theory.md §2.3).
+    """The A points of the half-open fundamental parallelogram, sorted (docs/theory/equivalence.md).
 
     The same set and order as ``algebra.parallelogram_points``, found row by row in O(A): for a
     fixed eta the two conditions bound xi to an interval. [Checked equal to

@@ -23,7 +23,8 @@ _NAMES = ("alpha", "beta", "gamma", "delta")
 
 @dataclass(frozen=True, order=True)
 class ParameterSet:
-    """The parameters of the cycloid C(alpha, beta, gamma, delta) ([P18] §2, theory.md §2.1).
+    """The parameters of the cycloid C(alpha, beta, gamma, delta) ([P18] §2,
+    docs/theory/folding.md).
 
     Ordering is lexicographic on (alpha, beta, gamma, delta); the catalog uses it to pick the
     smallest member of a class as its label.
@@ -60,7 +61,7 @@ class ParameterSet:
 
     @property
     def area(self) -> int:
-        """A = alpha*delta + beta*gamma, the number of transitions ([FR24], theory.md §2.1)."""
+        """A = alpha*delta + beta*gamma, the transitions ([FR24]; docs/theory/folding.md)."""
         return self.alpha * self.delta + self.beta * self.gamma
 
     def as_tuple(self) -> tuple[int, int, int, int]:
@@ -68,7 +69,8 @@ class ParameterSet:
         return (self.alpha, self.beta, self.gamma, self.delta)
 
     def swap(self) -> ParameterSet:
-        """C(beta, alpha, delta, gamma): the mirror (xi, eta) -> (eta, xi) (theory.md §5.1)."""
+        """C(beta, alpha, delta, gamma): the mirror (xi, eta) -> (eta, xi)
+        (docs/theory/isomorphism.md)."""
         return ParameterSet(self.beta, self.alpha, self.delta, self.gamma)
 
     def __str__(self) -> str:

@@ -7,7 +7,8 @@ Markings of 1-safe nets are bit masks (bit j = place j), which keeps the search 
 microsecond per arc; nets that turn out not to be 1-safe are searched again with token tuples.
 
 This is the reference the closed formulas of zoo.core.invariants are checked against
-(theory.md §3.2, §10); it is exponential in the tokens (design.md §3), hence the state limit.
+(docs/theory/cycles-and-tokens.md, docs/theory/state-counts.md); it is exponential in the tokens
+(docs/architecture.md), hence the state limit.
 """
 
 from __future__ import annotations
@@ -159,7 +160,7 @@ def reachability_graph(graph: MarkedGraph, limit: int = DEFAULT_STATE_LIMIT) -> 
     >>> from zoo.core.net import build_net
     >>> from zoo.core.params import ParameterSet
     >>> rg = reachability_graph(build_net(ParameterSet(4, 2, 2, 3)))
-    >>> rg.state_count, rg.arc_count  # theory.md §11 table: 40 states, 64 edges
+    >>> rg.state_count, rg.arc_count  # docs/theory/check-values.md table: 40 states, 64 edges
     (40, 64)
     """
     if not isinstance(graph, MarkedGraph):
@@ -247,7 +248,7 @@ def strongly_connected_components(rg: ReachabilityGraph) -> list[list[int]]:
 def is_reversible(rg: ReachabilityGraph) -> bool:
     """Reversible: the initial marking is reachable from every reachable marking.
 
-    Equivalently the reachability graph is strongly connected (theory.md §3.2).
+    Equivalently the reachability graph is strongly connected (docs/theory/cycles-and-tokens.md).
     """
     predecessors: list[list[int]] = [[] for _ in rg.codes]
     for source, _t, target in rg.arcs:
@@ -292,7 +293,8 @@ def dead_transitions(rg: ReachabilityGraph) -> tuple[int, ...]:
 
 
 def is_live(rg: ReachabilityGraph) -> bool:
-    """Live: from every reachable marking every transition can fire again (theory.md §3.2)."""
+    """Live: from every reachable marking every transition can fire again
+    (docs/theory/cycles-and-tokens.md)."""
     return not dead_transitions(rg)
 
 

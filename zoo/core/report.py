@@ -178,10 +178,12 @@ LEVELS = ("same_reading", "same_class", "same_frame")
 def compare_report(first: ParameterSet, second: ParameterSet) -> Report:
     """Whether two parameter sets are the same reading, class and frame, and on what evidence.
 
-    * reading: equal lattice key and equal (alpha, beta) (design.md §1); decided by algebra,
+    * reading: equal lattice key and equal (alpha, beta) (docs/theory/isomorphism.md); decided by
+      algebra,
       which is the definition;
     * class (isomorphic marked nets, places untyped) and frame (isomorphic unmarked nets): the
-      algebraic keys of theory.md §5.1 *and* nauty fingerprints (below the explicit-net limit).
+      algebraic keys of docs/theory/isomorphism.md *and* nauty fingerprints (below the explicit-net
+      limit).
       When both are available and agree the evidence is ``"both"``; the answer then does not
       depend on either method alone. A disagreement is a bug: the answer follows nauty (graph
       isomorphism is the definition), the evidence is ``"nauty"``, and ``disagreements`` names
@@ -270,7 +272,8 @@ def disagreement_message(report: Report) -> str:
 def exploration_report(p: ParameterSet, state_limit: int = DEFAULT_STATE_LIMIT) -> dict[str, Any]:
     """What ``zoo explore`` reports, as a JSON-ready dict (keys in docs/explore.md).
 
-    The explicit side is zoo.core.reachability's breadth-first search; the formulas are theory.md
+    The explicit side is zoo.core.reachability's breadth-first search; the formulas are
+    docs/theory/README.md
     §10 (zoo.core.invariants). Raises LimitExceeded, naming --state-limit, when the search passes
     the limit, with the number of states the formula predicts.
     """

@@ -4,7 +4,8 @@ A ring design is a closed loop of N = C + G cells holding C items (frames of a s
 a factory loop) and G free slots. One move is an item stepping into the free cell ahead of it;
 the slot it fills moves one cell back. Items and slots are either anonymous or individually
 named. [TQ20] shows that such circular traffic queues are cycloid systems; the mapping used
-here is the one of theory.md §9 (derived there and verified by reachability-graph isomorphism):
+here is the one of docs/theory/ring-designs.md (derived there and verified by reachability-graph
+isomorphism):
 
 ========================  ===================  ==========================
 model                     cycloid              A
@@ -46,7 +47,7 @@ MAX_CELLS = 10_000
 
 @dataclass(frozen=True)
 class RingDesign:
-    """A circular queue of ``items`` items and ``slots`` free slots (theory.md §9).
+    """A circular queue of ``items`` items and ``slots`` free slots (docs/theory/ring-designs.md).
 
     >>> str(RingDesign(2, 3).params)
     'C(3,2,1,1)'
@@ -100,7 +101,8 @@ class RingDesign:
         """k in C(G, C, k, k): how many anonymous rounds make the ring return to itself.
 
         Naming the items multiplies the period by C (the items must rotate back into place),
-        naming the slots by G, naming both by lcm(C, G) (theory.md §8-9: temporal iterations
+        naming the slots by G, naming both by lcm(C, G) (docs/theory/iterations.md,
+        docs/theory/ring-designs.md: temporal iterations
         of the anonymous ring).
         """
         if self.individual_items and self.individual_slots:
@@ -113,7 +115,7 @@ class RingDesign:
 
     @property
     def params(self) -> ParameterSet:
-        """The cycloid C(G, C, k, k) of the ring (theory.md §9; [TQ20])."""
+        """The cycloid C(G, C, k, k) of the ring (docs/theory/ring-designs.md; [TQ20])."""
         k = self.fold
         return ParameterSet(self.slots, self.items, k, k)
 
@@ -125,7 +127,7 @@ class RingDesign:
 #
 # A cell holds ("item", name) or ("slot", name); an anonymous item or slot has name None. Cells are
 # numbered 0..N-1 in the direction of travel, so the cell ahead of cell i is (i + 1) mod N.
-# Nothing below refers to cycloids or to the formulas of theory.md.
+# Nothing below refers to cycloids or to the formulas of docs/theory/README.md.
 
 Cell = tuple[str, int | None]
 RingState = tuple[Cell, ...]
@@ -198,8 +200,10 @@ def describe_ring(design: RingDesign, class_id: str | None) -> dict[str, Any]:
     """Everything ``zoo ring`` prints, as a plain JSON-ready dict (the catalog lookup is the
     caller's, so that nothing here touches storage).
 
-    ``states`` is the closed formula of theory.md §10; ``area`` is also the length of the
-    shortest firing sequence that returns the ring to its start (theory.md §3.2, §9).
+    ``states`` is the closed formula of docs/theory/state-counts.md; ``area`` is also the length of
+    the
+    shortest firing sequence that returns the ring to its start (docs/theory/cycles-and-tokens.md,
+    docs/theory/ring-designs.md).
     ``invariants`` is ``zoo show``'s report of the cycloid (zoo.core.report).
     """
     p = design.params
@@ -232,7 +236,8 @@ def simulation_report(design: RingDesign, max_states: int = 20_000) -> dict[str,
     """Simulate the ring and compare its state graph with the cycloid's reachability graph.
 
     The two are compared by networkx's directed-graph isomorphism (VF2), after the cheap
-    checks of state and arc counts. ``isomorphic`` false would mean theory.md §9's mapping is
+    checks of state and arc counts. ``isomorphic`` false would mean docs/theory/ring-designs.md's
+    mapping is
     wrong for this ring.
     """
     ring_graph = ring_state_graph(design, max_states)

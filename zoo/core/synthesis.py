@@ -1,9 +1,11 @@
-"""Synthesis: the parameter sets of a cycloid system from net-level observables (theory.md §6).
+"""Synthesis: the parameter sets of a cycloid system from net-level observables
+(docs/theory/synthesis.md).
 
 The synthesis theorem of [P18]/[FI19] (cited in the introduction of [RC22]) recovers the
 parameters from the number of transitions A, the minimal cycle length cyc and the token counts.
 Its closed form, gamma = (alpha*cyc - A)/(alpha - beta) and delta = (A - beta*cyc)/(alpha - beta),
-needs alpha != beta and a shortest cycle along R; theory.md §6 shows it fails on many tuples and
+needs alpha != beta and a shortest cycle along R; docs/theory/synthesis.md shows it fails on many
+tuples and
 that (A, cyc, alpha, beta) is not even a complete invariant (A = 45, 48, 54). This module
 therefore implements the robust method: try every candidate and keep those whose exact loop
 matches, one per distinct folding lattice.
@@ -32,7 +34,8 @@ def candidates(area: int, alpha: int, beta: int) -> list[ParameterSet]:
     """All parameter sets with the given area and token counts (alpha backward, beta forward).
 
     alpha*delta + beta*gamma = A with gamma, delta >= 1: for every delta in 1..(A - beta)/alpha
-    with beta | (A - alpha*delta), gamma = (A - alpha*delta)/beta (theory.md §6, step 1).
+    with beta | (A - alpha*delta), gamma = (A - alpha*delta)/beta (docs/theory/synthesis.md, step
+    1).
     Sorted by (gamma, delta).
 
     >>> [str(p) for p in candidates(16, 4, 2)]
@@ -54,9 +57,9 @@ def synthesize(area: int, loop: int, alpha: int, beta: int) -> list[ParameterSet
 
     One parameter set per distinct folding lattice (the smallest of its candidates), sorted.
     With alpha and beta fixed, distinct lattices are distinct readings; two readings may still
-    be the same class when alpha = beta (the swap, theory.md §6 tables), which
+    be the same class when alpha = beta (the swap, docs/theory/synthesis.md tables), which
     ``zoo.core.algebra.class_key`` tells apart. An empty list means no cycloid has these
-    observables. (theory.md §6 "robust synthesis"; checked against its tables in
+    observables. (docs/theory/synthesis.md "robust synthesis"; checked against its tables in
     tests/core/test_synthesis.py.)
 
     >>> [str(p) for p in synthesize(16, 5, 4, 2)]
@@ -73,11 +76,13 @@ def synthesize(area: int, loop: int, alpha: int, beta: int) -> list[ParameterSet
 
 
 def closed_form_parameters(area: int, loop: int, alpha: int, beta: int) -> ParameterSet | None:
-    """The 2018-style closed form (theory.md §6), or None where it gives no parameter set.
+    """The 2018-style closed form (docs/theory/synthesis.md), or None where it gives no parameter
+    set.
 
     gamma = (alpha*cyc - A)/(alpha - beta), delta = (A - beta*cyc)/(alpha - beta). It is valid
     only when alpha != beta and cyc = gamma + delta; the result is *not* checked against the
-    loop here, so callers compare it with ``synthesize`` (theory.md §6 counts where it fails).
+    loop here, so callers compare it with ``synthesize`` (docs/theory/synthesis.md counts where it
+    fails).
 
     >>> str(closed_form_parameters(16, 5, 4, 2))
     'C(4,2,2,3)'

@@ -2,7 +2,8 @@
 
 Transitions are boxes, places circles (a dot inside for a token), forward places and their arcs
 in one colour and backward ones in another. Every node carries a pinned ``pos`` in inches
-(Graphviz's y axis points up, so time points up as in theory.md §1, Drawing): render with
+(Graphviz's y axis points up, so time points up as in docs/theory/petri-space.md, Drawing): render
+with
 ``neato -Tsvg`` or ``fdp -Tsvg`` to keep the layout (pinned positions are in inches), or with
 ``dot`` to let Graphviz choose one.
 Pictures (SVG) are zoo.pictures.views's business; this module writes the graph as text.

@@ -4,13 +4,15 @@ A net read from a file (``zoo.interchange.netfile``) is put through the definiti
 system step by step (docs/identify.md), so that a net which is not one gets the first rule it breaks
 as its answer:
 
-1. every arc has weight 1 (theory.md §1: the Petri space is an ordinary net);
+1. every arc has weight 1 (docs/theory/petri-space.md: the Petri space is an ordinary net);
 2. it is a marked graph: every place has exactly one input and one output transition (§1);
 3. every transition has two input and two output places (§1);
 4. no place holds more than one token initially, the net is strongly connected, and every
    cycle carries a token (live) (§3.2);
-5. synthesis by the robust method of theory.md §6: A = |T|, the token counts (alpha + beta
-   tokens, min(alpha, beta) transitions enabled, theory.md §3.1) and the minimal cycle length
+5. synthesis by the robust method of docs/theory/synthesis.md: A = |T|, the token counts (alpha +
+beta
+   tokens, min(alpha, beta) transitions enabled, docs/theory/initial-marking.md) and the minimal
+   cycle length
    give the candidate parameter sets (``zoo.core.synthesis.synthesize``); a candidate is accepted
    only when its canonical form equals the net's (``zoo.core.canonical``);
 6. when no candidate is accepted, the reason is the first of: a place can come to hold two
@@ -28,13 +30,11 @@ from __future__ import annotations
 
 import os
 from collections import Counter, deque
-from collections.abc import Sequence
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass, field
-from pathlib import Path
 
 from zoo.core.net import MarkedGraph
 from zoo.core.params import ParameterSet
-from zoo.errors import CatalogError
 from zoo.interchange.netfile import read_net_file
 from zoo.interchange.netmodel import PLACE, PlaceTransitionNet
 
@@ -48,7 +48,7 @@ _SHOWN_CYCLE = 8
 
 @dataclass(frozen=True)
 class Observables:
-    """The net-level numbers synthesis starts from (theory.md §6)."""
+    """The net-level numbers synthesis starts from (docs/theory/synthesis.md)."""
 
     transitions: int
     places: int
@@ -224,7 +224,8 @@ def _reachable(adjacency: Sequence[Sequence[int]], start: int) -> list[bool]:
 
 
 def check_connected(graph: MarkedGraph) -> None:
-    """``_NotCycloid`` unless every transition can reach every other one (theory.md §3.2)."""
+    """``_NotCycloid`` unless every transition can reach every other one
+    (docs/theory/cycles-and-tokens.md)."""
     forward = [[v for _, v in out] for out in _successors(graph)]
     backward: list[list[int]] = [[] for _ in graph.transitions]
     for u, vs in enumerate(forward):
@@ -321,7 +322,8 @@ def place_bound(
 
 
 def check_initial_tokens(graph: MarkedGraph) -> None:
-    """``_NotCycloid`` if a place holds more than one token initially (theory.md §3.2)."""
+    """``_NotCycloid`` if a place holds more than one token initially
+    (docs/theory/cycles-and-tokens.md)."""
     for j, tokens in enumerate(graph.tokens):
         if tokens > 1:
             raise _NotCycloid(
@@ -331,7 +333,8 @@ def check_initial_tokens(graph: MarkedGraph) -> None:
 
 
 def check_safe(graph: MarkedGraph) -> None:
-    """``_NotCycloid`` if some place can come to hold two tokens (theory.md §3.2: 1-safe).
+    """``_NotCycloid`` if some place can come to hold two tokens (docs/theory/cycles-and-tokens.md:
+    1-safe).
 
     Quadratic in the size of the net, so skipped above ``DIAGNOSTIC_LIMIT`` transitions.
     """
@@ -382,7 +385,8 @@ def closed_walk_counts(graph: MarkedGraph, start: int, max_length: int) -> tuple
     """How many closed walks of each length 1..max_length start and end at a transition.
 
     An invariant of the unmarked net under isomorphism, the same at every transition of a
-    cycloid (its translations act transitively, theory.md §2.4); used to set candidates apart
+    cycloid (its translations act transitively, docs/theory/lattice-key.md); used to set candidates
+    apart
     cheaply. Dynamic programming over walk lengths, O(max_length * |P|).
     """
     successors = _successors(graph)
@@ -399,7 +403,8 @@ def closed_walk_counts(graph: MarkedGraph, start: int, max_length: int) -> tuple
 
 
 def enabled_transitions(graph: MarkedGraph) -> int:
-    """Transitions whose input places are all marked (min(alpha, beta) for C(p), theory.md §3.1)."""
+    """Transitions whose input places are all marked (min(alpha, beta) for C(p),
+    docs/theory/initial-marking.md)."""
     return sum(
         1
         for t in range(graph.transition_count)
@@ -411,7 +416,8 @@ def observables_of(graph: MarkedGraph) -> Observables:
     """A, |P|, tokens, enabled transitions and the shortest cycle through the first transition.
 
     Every transition of a cycloid looks the same (its translations are automorphisms,
-    theory.md §2.4), so the shortest cycle through one transition is the minimal cycle length.
+    docs/theory/lattice-key.md), so the shortest cycle through one transition is the minimal cycle
+    length.
     For a net that is not a cycloid the canonical-form check rejects every candidate anyway.
     """
     return Observables(
@@ -444,7 +450,7 @@ def _uneven_transition(graph: MarkedGraph, loop: int) -> str | None:
 
 
 def _class_label(p: ParameterSet) -> ParameterSet:
-    """The smallest member of the class of p (design.md §2), found algebraically.
+    """The smallest member of the class of p (docs/citing.md), found algebraically.
 
     Members share the area and, as a multiset, the token counts {alpha, beta} (the swap keeps
     them; the exceptional family has alpha = beta = 2), so the candidates with either order of
@@ -458,16 +464,22 @@ def _class_label(p: ParameterSet) -> ParameterSet:
     return min(q for q in pool if class_key(q) == key)
 
 
+#: Asks a catalog for the class of a parameter set: (params, fingerprint of the file's net) ->
+#: (class identifier or None, a short status). ``zoo.catalog.lookup.catalog_lookup`` makes one.
+CatalogLookup = Callable[[ParameterSet, str | None], tuple[str | None, str]]
+
+
 def identify_net(
-    net: PlaceTransitionNet, location: str | None = None, *, use_catalog: bool = True
+    net: PlaceTransitionNet, lookup: CatalogLookup | None = None, *, use_catalog: bool = True
 ) -> Identification:
     """Decide whether ``net`` is a cycloid system and, if it is, which one (docs/identify.md).
 
-    ``location`` names the catalog (``--db``); it is only read, never created or built. With
-    ``use_catalog=False`` the catalog is not consulted at all (``catalog`` says so).
+    ``lookup`` asks a catalog for the class (``zoo.catalog.lookup.catalog_lookup``); without
+    one, or with ``use_catalog=False``, no catalog is consulted (``catalog`` says so). This
+    layer never opens a database itself.
     """
     try:
-        return _identify(net, location, use_catalog)
+        return _identify(net, lookup if use_catalog else None)
     except _NotCycloid as refusal:
         return Identification(
             source=net.source,
@@ -478,7 +490,7 @@ def identify_net(
         )
 
 
-def _identify(net: PlaceTransitionNet, location: str | None, use_catalog: bool) -> Identification:
+def _identify(net: PlaceTransitionNet, lookup: CatalogLookup | None) -> Identification:
     from zoo.core.canonical import canonical_form, isomorphism_from_forms
     from zoo.core.net import build_net
     from zoo.core.synthesis import synthesize
@@ -489,17 +501,20 @@ def _identify(net: PlaceTransitionNet, location: str | None, use_catalog: bool) 
     check_live(graph)
     seen = observables_of(graph)
     loop = seen.loop or 0
-    # alpha + beta tokens, min(alpha, beta) enabled (theory.md §3.1); one order of the two
+    # alpha + beta tokens, min(alpha, beta) enabled (docs/theory/initial-marking.md); one order of
+    # the two
     # counts suffices because the swap C(b,a,d,c) is the same class.
     alpha, beta = seen.tokens - seen.enabled, seen.enabled
     found = synthesize(seen.transitions, loop, alpha, beta) if beta >= 1 else []
     form = canonical_form(graph, marked=True)
     # One nauty call per class, not per candidate: candidates with equal algebraic class keys
-    # are isomorphic (theory.md §5.1, confirmed with nauty by every catalog build), so only
+    # are isomorphic (docs/theory/isomorphism.md, confirmed with nauty by every catalog build), so
+    # only
     # their label needs comparing.
     labels = list(dict.fromkeys(_class_label(candidate) for candidate in found))
     if len(labels) > 1:
-        # Several classes share the observables (theory.md §6): drop those whose nets already
+        # Several classes share the observables (docs/theory/synthesis.md): drop those whose nets
+        # already
         # differ in a cheap invariant before paying for their canonical forms.
         length = loop + 4
         profile = closed_walk_counts(graph, 0, length)
@@ -512,8 +527,8 @@ def _identify(net: PlaceTransitionNet, location: str | None, use_catalog: bool) 
             continue
         transition_map, place_map = mapping
         class_id, status = (
-            catalog_status(params, location, form.fingerprint)
-            if use_catalog
+            lookup(params, form.fingerprint)
+            if lookup is not None
             else (None, "catalog not consulted")
         )
         return Identification(
@@ -560,74 +575,18 @@ def _refusal_reason(graph: MarkedGraph, seen: Observables, found: Sequence[Param
     return f"not isomorphic to {shown}, {only} with its observables ({observed})"
 
 
-def _missing_catalog_file(location: str | None) -> str | None:
-    """``no catalog at PATH`` when the location is a file path with no file, else None.
-
-    Checked before ``resolve_location``, which creates the parent folder of a SQLite file:
-    identification only reads, so it must not leave folders behind either.
-    """
-    from zoo.storage.database import CATALOG_ENV_VAR, default_catalog_path
-
-    value = (location or "").strip() or os.environ.get(CATALOG_ENV_VAR, "").strip()
-    if "://" in value:
-        return None
-    path = Path(value).expanduser() if value else default_catalog_path()
-    return None if path.is_file() else f"no catalog at {path.absolute()}"
-
-
-def catalog_status(
-    params: ParameterSet, location: str | None, fingerprint: str | None = None
-) -> tuple[str | None, str]:
-    """(class identifier or None, a short status) for a class label; never creates a catalog.
-
-    The status is the identifier, ``beyond the catalog bound N``, ``not in the catalog at X``,
-    ``no catalog at X`` or ``catalog unavailable (...)``. With ``fingerprint`` the entry's
-    stored fingerprint is compared with it, and a mismatch is reported in the status.
-    """
-    missing = _missing_catalog_file(location)
-    if missing is not None:
-        return None, missing
-    from zoo.storage.database import catalog_exists, display_location, resolve_location
-
-    try:
-        url = resolve_location(location)
-        shown = display_location(url)
-        if not catalog_exists(url):
-            return None, f"no catalog at {shown}"
-        from zoo.catalog.service import Catalog
-
-        catalog = Catalog.open(location)
-        try:
-            entry = catalog.class_for_params(params)
-            bound = catalog.complete_to()
-        finally:
-            catalog.close()
-    except CatalogError as exc:
-        return None, f"catalog unavailable ({exc})"
-    if entry is not None:
-        if fingerprint is not None and entry.fingerprint != fingerprint:
-            return entry.id, (
-                f"{entry.id}, but its stored fingerprint differs from this net's; the catalog "
-                "may use another canonical encoding"
-            )
-        return entry.id, entry.id
-    if params.area > bound:
-        return None, f"beyond the catalog bound {bound}"
-    return None, f"not in the catalog at {shown}"
-
-
 def identify_file(
-    path: str | os.PathLike[str], location: str | None = None, *, use_catalog: bool = True
+    path: str | os.PathLike[str], lookup: CatalogLookup | None = None, *, use_catalog: bool = True
 ) -> Identification:
     """Read a PNML or net text file and identify its net; unreadable files raise ``FormatError``."""
-    return identify_net(read_net_file(path), location, use_catalog=use_catalog)
+    return identify_net(read_net_file(path), lookup, use_catalog=use_catalog)
 
 
 __all__ = [
     "DIAGNOSTIC_LIMIT",
     "Identification",
     "Observables",
-    "catalog_status",
+    "CatalogLookup",
     "identify_file",
     "identify_net",
     "marked_graph_of",

@@ -84,7 +84,8 @@ def drawing_coordinates(
 ) -> tuple[list[tuple[float, float]], list[tuple[float, float]]]:
     """Positions of the transitions and places of a cycloid net, time pointing up.
 
-    Transition (xi, eta) sits at (xi - eta, xi + eta): space to the right, time up (theory.md
+    Transition (xi, eta) sits at (xi - eta, xi + eta): space to the right, time up
+    (docs/theory/README.md
     §1, Drawing), so forward arcs lead up-right and backward arcs up-left. A place sits at the
     midpoint of its arc in the Petri space, (xi + 1/2, eta) for a forward and (xi, eta + 1/2)
     for a backward place. No two nodes coincide: a forward place has a half-integer xi, a

@@ -3,7 +3,8 @@
 Writing follows the PT-net grammar of the standard: ``pnml/net[@id,@type]/page`` holding
 ``place``, ``transition`` and ``arc`` elements with ``name/text``, ``initialMarking/text`` and
 ``graphics/position[@x,@y]``. Positions lay the net out on its fundamental parallelogram with
-time pointing up (theory.md §1, Drawing): transition (xi, eta) sits at x = S*(xi - eta),
+time pointing up (docs/theory/petri-space.md, Drawing): transition (xi, eta) sits at x = S*(xi -
+eta),
 y = -S*(xi + eta) in screen coordinates, a place at the midpoint of its arc in the Petri space.
 
 Reading is defensive (docs/pnml.md, "Safe input"): the size limit is applied before parsing,

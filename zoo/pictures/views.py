@@ -5,20 +5,23 @@ Four views, each as SVG or PNG (matplotlib, Agg backend) or as Graphviz DOT text
 
 * ``parallelogram``: the fundamental parallelogram O, P, Q = P + R, R in the Petri space with
   the lattice vectors P = (alpha, -beta) and R = (gamma, delta), the A folded transitions (one
-  representative each, theory.md §2.3), their places with the initial marking, and for arcs
+  representative each, docs/theory/equivalence.md), their places with the initial marking, and for
+  arcs
   that leave the parallelogram a dashed copy of the target transition with its name. Drawn as
-  in theory.md §1 "Drawing": time up, space across, the Petri point (xi, eta) at
+  in docs/theory/petri-space.md "Drawing": time up, space across, the Petri point (xi, eta) at
   (xi - eta, xi + eta), so forward arcs run to the upper right and backward arcs to the upper
   left.
 * ``net``: the net as a graph, every node once. Transitions sit on concentric rings, one ring
-  per forward cycle, at the angle of their Hermite coordinate (theory.md §2.4); forward arcs
+  per forward cycle, at the angle of their Hermite coordinate (docs/theory/lattice-key.md); forward
+  arcs
   run counter-clockwise along a ring, backward arcs outwards to the next ring.
 * ``processes``: the same layout for a regular cycloid (beta | delta), each process (forward
-  cycle, theory.md §7) in its own colour and the backward arcs, the release messages between
+  cycle, docs/theory/processes.md) in its own colour and the backward arcs, the release messages
+  between
   processes, in grey.
 * ``states``: the reachability graph of a small system, layered by distance from the initial
   marking (which is at the bottom), with a state limit checked against the closed formula of
-  theory.md §10 before anything is explored.
+  docs/theory/state-counts.md before anything is explored.
 """
 
 from __future__ import annotations
@@ -72,7 +75,8 @@ _PROCESS_COLOURS = (
 
 @dataclass(frozen=True)
 class NetPicture:
-    """The nodes and arcs of C(p) with Petri-space coordinates (theory.md §1-§3)."""
+    """The nodes and arcs of C(p) with Petri-space coordinates (docs/theory/petri-space.md,
+    docs/theory/folding.md, docs/theory/equivalence.md, docs/theory/initial-marking.md)."""
 
     params: ParameterSet
     transitions: tuple[str, ...]
@@ -153,7 +157,7 @@ def petri_to_page(point: tuple[float, float]) -> Point:
 
 
 def parallelogram_corners(p: ParameterSet) -> tuple[tuple[int, int], ...]:
-    """O, P, Q = P + R, R of the fundamental parallelogram (theory.md §2.2)."""
+    """O, P, Q = P + R, R of the fundamental parallelogram (docs/theory/folding.md)."""
     return ((0, 0), (p.alpha, -p.beta), (p.alpha + p.gamma, p.delta - p.beta), (p.gamma, p.delta))
 
 
@@ -343,9 +347,10 @@ def _lattice_vector(ax: Any, start: Point, end: Point) -> None:
 def ring_positions(net: NetPicture) -> tuple[list[Point], list[int]]:
     """Page positions of the transitions on concentric rings and the ring of each transition.
 
-    The Hermite coordinates (xi', eta') with 0 <= xi' < A/g, 0 <= eta' < g (theory.md §2.4)
+    The Hermite coordinates (xi', eta') with 0 <= xi' < A/g, 0 <= eta' < g
+    (docs/theory/lattice-key.md)
     put transition (xi', eta') on ring eta' at angle 2 pi xi' g / A, so every forward cycle is
-    one ring (g = gcd(beta, delta) rings, theory.md §7).
+    one ring (g = gcd(beta, delta) rings, docs/theory/processes.md).
     """
     key = lattice_key(net.params)
     period = key.period
@@ -527,7 +532,8 @@ class StateGraph:
 def state_graph(p: ParameterSet, limit: int = DRAW_STATE_LIMIT) -> tuple[NetPicture, StateGraph]:
     """The reachability graph of C(p) for drawing, refused beyond ``limit`` states.
 
-    The size is known in advance from theory.md §10 (A C(alpha+beta, alpha)/(alpha+beta)), so
+    The size is known in advance from docs/theory/state-counts.md (A C(alpha+beta,
+    alpha)/(alpha+beta)), so
     the refusal happens before any search; the search itself is zoo.core.reachability's.
     """
     expected = reachable_state_count(p)
@@ -599,7 +605,8 @@ def _plot_states(
     for a, b, t in graph.arcs:
         upward = layers[b] > layers[a]
         colour = "#333333" if upward else "#b07d2b"
-        # Arcs back to earlier layers (the system is reversible, theory.md §3.2) bow out to
+        # Arcs back to earlier layers (the system is reversible, docs/theory/cycles-and-tokens.md)
+        # bow out to
         # the side so that they do not run over the layers in between.
         path = [positions[a], positions[b]] if upward else _curve(positions[a], positions[b], 0.3)
         canvas.arc(path, colour, gap, gap, dashed=not upward, width=0.8)

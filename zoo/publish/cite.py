@@ -1,4 +1,4 @@
-"""Citations of catalog entries: BibTeX and plain text (design.md §2, docs/releases.md).
+"""Citations of catalog entries: BibTeX and plain text (docs/citing.md, docs/releases.md).
 
 A citation names the entry by its identifier (``CY16-3`` for a class, ``FR16-2`` for a frame),
 its label (the smallest member, which anyone can recompute), the version of the catalog it was

@@ -75,7 +75,7 @@ def iter_catalog_entries(
 
     Streams through ``Catalog.iter_entries``, which reads at most ``batch`` entries at a time, so
     a dump of the whole catalog never holds more than that in memory. Each area must be stored
-    completely, and must hold as many classes as its row in ``areas`` says (design.md §2:
+    completely, and must hold as many classes as its row in ``areas`` says (docs/citing.md:
     identifiers CY{area}-1 .. CY{area}-{classes}); anything else is a damaged catalog.
     """
     counts = {stats.area: stats.classes for stats in catalog.stats() if stats.complete}

@@ -109,7 +109,8 @@ def render_query_docs() -> str:
         "",
         "## What a query matches",
         "",
-        "A class (a catalog entry, design.md §1) has one or two readings and one or more "
+        "A class (a catalog entry, docs/theory/isomorphism.md) has one or two readings and one or "
+        "more "
         "member parameter sets. Fields live at three levels:",
         "",
         "* **class** fields are the same for every member (area, loop, states, ...);",

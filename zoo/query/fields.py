@@ -1,7 +1,8 @@
 """The registry of query fields: the one place that says what a query can ask about.
 
 Every field of the query language (``zoo/query/parser.py``) is a ``Field`` here: its name and
-aliases, the level it belongs to (class, reading or parameter set, design.md §1), its value type,
+aliases, the level it belongs to (class, reading or parameter set, docs/theory/isomorphism.md), its
+value type,
 the database columns that hold it (docs/architecture.md, "Schema"), a one-line description and an
 example. The parser, its error messages, the compilation to SQL (``zoo/storage/querysql.py``), sort
 keys, column selection and the page ``docs/query-language.md`` are all derived from it.
@@ -105,16 +106,19 @@ FIELDS: tuple[Field, ...] = (
     _f("area", _C, _INT, "area",
        "number of transitions A = αδ + βγ", "area <= 30"),
     _f("loop", _C, _INT, "loop",
-       "length of a shortest cycle, in transitions (theory.md §4)", "loop = 5",
+       "length of a shortest cycle, in transitions"
+       " (docs/theory/minimal-cycle-length.md)", "loop = 5",
        aliases=("cyc",)),
     _f("states", _C, _BIG, "states states_key",
-       "reachable markings of the system, exact (theory.md §10)", "states > 10^20"),
+       "reachable markings of the system, exact (docs/theory/state-counts.md)", "states > 10^20"),
     _f("state_arcs", _C, _BIG, "state_arcs state_arcs_key",
-       "arcs of the reachability graph, exact (theory.md §10)", "state_arcs in 100..1000"),
+       "arcs of the reachability graph, exact"
+       " (docs/theory/state-counts.md)", "state_arcs in 100..1000"),
     _f("tokens", _C, _INT, "tokens",
        "tokens of the initial marking, α + β", "tokens = 4"),
     _f("enabled", _C, _INT, "enabled",
-       "transitions enabled at the initial marking, min(α, β) (theory.md §3.1)", "enabled >= 2"),
+       "transitions enabled at the initial marking, min(α, β)"
+       " (docs/theory/initial-marking.md)", "enabled >= 2"),
     _f("semi_enabled", _C, _INT, "semi_enabled",
        "transitions with exactly one marked input place at the initial marking, |α − β|",
        "semi_enabled = 0"),
@@ -127,12 +131,13 @@ FIELDS: tuple[Field, ...] = (
        "time between two firings of a transition at one time unit per firing, A / min(α, β)",
        "cycle_time <= 7/2"),
     _f("group_d1", _C, _INT, "group_d1",
-       "d1 of the transition group Z_d1 × Z_(A/d1), gcd(α, β, γ, δ) (theory.md §2.4)",
+       "d1 of the transition group Z_d1 × Z_(A/d1), gcd(α, β, γ, δ) (docs/theory/lattice-key.md)",
        "group_d1 > 1"),
     _f("cyclic", _C, _BOOL, "cyclic",
        "the transition group is cyclic (group_d1 = 1)", "not cyclic"),
     _f("iteration", _C, _INT, "iteration",
-       "largest n such that the system is an n-fold iteration of a smaller one (theory.md §8)",
+       "largest n such that the system is an n-fold iteration of a smaller one"
+       " (docs/theory/iterations.md)",
        "iteration >= 2"),
     _f("readings", _C, _INT, "reading_count",
        "readings in the class: 1, or 2 when the swap gives a different reading",
@@ -144,19 +149,20 @@ FIELDS: tuple[Field, ...] = (
     _f("beta", _R, _INT, "beta",
        "tokens on forward places (items, cars)", "β in (1, 2)", aliases=("β",)),
     _f("processes", _R, _INT, "processes",
-       "sequential processes: the forward cycles, gcd(β, δ) (theory.md §7)", "processes = 3"),
+       "sequential processes: the forward cycles, gcd(β, δ)"
+       " (docs/theory/processes.md)", "processes = 3"),
     _f("regular", _R, _BOOL, "regular",
-       "β divides δ: every forward cycle carries one token (theory.md §7)", "regular"),
+       "β divides δ: every forward cycle carries one token (docs/theory/processes.md)", "regular"),
     _f("slowness", _R, _FRAC, "slowness_num slowness_den",
-       "Petri's slowness (α − β)/(α + β) (theory.md §10)", "slowness in -1/5..1/3"),
+       "Petri's slowness (α − β)/(α + β) (docs/theory/state-counts.md)", "slowness in -1/5..1/3"),
     _f("forward_count", _R, _INT, "forward_count",
-       "forward cycles, gcd(β, δ) (theory.md §7)", "forward_count >= 2"),
+       "forward cycles, gcd(β, δ) (docs/theory/processes.md)", "forward_count >= 2"),
     _f("forward_length", _R, _INT, "forward_length",
        "length of each forward cycle, A / gcd(β, δ)", "forward_length < 10"),
     _f("forward_tokens", _R, _INT, "forward_tokens",
        "tokens on each forward cycle, β / gcd(β, δ)", "forward_tokens = 1"),
     _f("backward_count", _R, _INT, "backward_count",
-       "backward cycles, gcd(α, γ) (theory.md §7)", "backward_count = 1"),
+       "backward cycles, gcd(α, γ) (docs/theory/processes.md)", "backward_count = 1"),
     _f("backward_length", _R, _INT, "backward_length",
        "length of each backward cycle, A / gcd(α, γ)", "backward_length != 12"),
     _f("backward_tokens", _R, _INT, "backward_tokens",

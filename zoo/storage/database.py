@@ -5,7 +5,8 @@ given by a SQLAlchemy URL (architecture.md, "Catalog location"). The schema is c
 upgraded only by the Alembic revisions shipped as the package ``zoo.migrations``, driven here
 through a programmatic Alembic configuration, so an installed zoo needs no ``alembic.ini``.
 
-SQLite connections are set up for the catalog's way of working (design.md §2, §5): foreign
+SQLite connections are set up for the catalog's way of working (docs/citing.md, docs/catalog.md):
+foreign
 keys on (SQLite leaves them off per connection), WAL journal so that a reader can query while a
 build writes one transaction per area, a busy timeout instead of an immediate "database is
 locked", and explicit ``BEGIN`` so that migrations run as real transactions.

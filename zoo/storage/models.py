@@ -67,7 +67,7 @@ def _key_of(column: str) -> Callable[[DefaultExecutionContext], str]:
 
 
 def _cyclic_default(context: DefaultExecutionContext) -> bool:
-    # The transition group Z_d1 x Z_(A/d1) is cyclic iff d1 = 1 (theory.md §2.4).
+    # The transition group Z_d1 x Z_(A/d1) is cyclic iff d1 = 1 (docs/theory/lattice-key.md).
     return int(_current_parameters(context)["group_d1"]) == 1
 
 
@@ -122,7 +122,8 @@ class AreaRecord(Base):
 
 
 class FrameRecord(Base):
-    """A frame: an isomorphism class of unmarked nets (design.md §1), ``FR{area}-{rank}``."""
+    """A frame: an isomorphism class of unmarked nets (docs/theory/isomorphism.md),
+    ``FR{area}-{rank}``."""
 
     __tablename__ = "frames"
 
@@ -146,7 +147,7 @@ class FrameRecord(Base):
 class ClassRecord(Base):
     """A catalog entry: an isomorphism class of marked nets, places not typed, ``CY{area}-{rank}``.
 
-    Holds the class-level invariants (the same for every reading, design.md §1).
+    Holds the class-level invariants (the same for every reading, docs/theory/isomorphism.md).
     """
 
     __tablename__ = "classes"
@@ -161,7 +162,8 @@ class ClassRecord(Base):
     label_delta: Mapped[int] = mapped_column(Integer)
     frame_id: Mapped[str] = mapped_column(ForeignKey("frames.id"), index=True)
     fingerprint: Mapped[str] = mapped_column(Text, unique=True)
-    loop: Mapped[int] = mapped_column(Integer, index=True)  # minimal cycle length, theory.md §4
+    # minimal cycle length, docs/theory/minimal-cycle-length.md
+    loop: Mapped[int] = mapped_column(Integer, index=True)
     states: Mapped[str] = mapped_column(Text)  # reachable markings, exact decimal text
     states_key: Mapped[str] = mapped_column(Text, index=True, default=_key_of("states"))
     state_arcs: Mapped[str] = mapped_column(Text)
@@ -177,7 +179,7 @@ class ClassRecord(Base):
     cycle_time_den: Mapped[int] = mapped_column(Integer)
     group_d1: Mapped[int] = mapped_column(Integer)  # transition group Z_d1 x Z_(A/d1)
     cyclic: Mapped[bool] = mapped_column(Boolean, default=_cyclic_default)  # group_d1 == 1
-    iteration: Mapped[int] = mapped_column(Integer)  # iteration depth, theory.md §8
+    iteration: Mapped[int] = mapped_column(Integer)  # iteration depth, docs/theory/iterations.md
     reading_count: Mapped[int] = mapped_column(Integer)
     member_count: Mapped[int] = mapped_column(Integer)
 
@@ -196,7 +198,7 @@ class ClassRecord(Base):
 
 
 class ReadingRecord(Base):
-    """A reading: same lattice and same (alpha, beta), places typed (design.md §1).
+    """A reading: same lattice and same (alpha, beta), places typed (docs/theory/isomorphism.md).
 
     A class has one or two readings; reading-level properties depend on which place kind is
     called forward.
@@ -221,7 +223,7 @@ class ReadingRecord(Base):
     backward_count: Mapped[int] = mapped_column(Integer)
     backward_length: Mapped[int] = mapped_column(Integer)
     backward_tokens: Mapped[int] = mapped_column(Integer)
-    nf_beta_delta: Mapped[str] = mapped_column(Text)  # C(a,b,c,d), theory.md §5.2
+    nf_beta_delta: Mapped[str] = mapped_column(Text)  # C(a,b,c,d), docs/theory/normal-forms.md
     nf_alpha_gamma: Mapped[str] = mapped_column(Text)
 
     class_record: Mapped[ClassRecord] = relationship(back_populates="readings")

@@ -18,6 +18,7 @@ from sqlalchemy import event
 from starlette.datastructures import UploadFile
 from starlette.requests import Request
 
+from zoo.catalog.lookup import catalog_lookup
 from zoo.catalog.service import DEFAULT_MAX_AREA, Catalog
 from zoo.errors import CatalogError, FormatError, LimitExceeded, ParameterError
 from zoo.interchange import nettext, pnml
@@ -88,7 +89,7 @@ def parse_upload(data: bytes, filename: str) -> PlaceTransitionNet:
 def identify_upload(catalog: Catalog, net: PlaceTransitionNet) -> Identification:
     """The one call of ``zoo.interchange.identify.identify_net``: the only line to change when
     its signature changes."""
-    return identify_net(net, catalog.url, use_catalog=True)
+    return identify_net(net, catalog_lookup(catalog.url))
 
 
 _SAFE_NAME = re.compile(r"[^A-Za-z0-9._-]+")

@@ -1,0 +1,89 @@
+"""Answering ``zoo identify`` from a catalog: the class of an identified net, never building.
+
+``zoo.interchange.identify`` takes a lookup function and never opens a database itself;
+``catalog_lookup(location)`` is that function for the catalog at a location (``--db``).
+"""
+
+from __future__ import annotations
+
+import os
+from collections.abc import Callable
+from functools import partial
+from pathlib import Path
+
+from zoo.catalog.service import Catalog
+from zoo.core.params import ParameterSet
+from zoo.errors import CatalogError
+from zoo.storage.database import (
+    CATALOG_ENV_VAR,
+    catalog_exists,
+    default_catalog_path,
+    display_location,
+    resolve_location,
+)
+
+
+def _missing_catalog_file(location: str | None) -> str | None:
+    """``no catalog at PATH`` when the location is a file path with no file, else None.
+
+    Checked before ``resolve_location``, which creates the parent folder of a SQLite file:
+    identification only reads, so it must not leave folders behind either.
+    """
+    value = (location or "").strip() or os.environ.get(CATALOG_ENV_VAR, "").strip()
+    if "://" in value:
+        return None
+    path = Path(value).expanduser() if value else default_catalog_path()
+    return None if path.is_file() else f"no catalog at {path.absolute()}"
+
+
+def catalog_status(
+    params: ParameterSet, location: str | None, fingerprint: str | None = None
+) -> tuple[str | None, str]:
+    """(class identifier or None, a short status) for a class label; never creates a catalog.
+
+    The status is the identifier, ``beyond the catalog bound N``, ``not in the catalog at X``,
+    ``no catalog at X`` or ``catalog unavailable (...)``. With ``fingerprint`` the entry's
+    stored fingerprint is compared with it, and a mismatch is reported in the status.
+    """
+    missing = _missing_catalog_file(location)
+    if missing is not None:
+        return None, missing
+    try:
+        url = resolve_location(location)
+        shown = display_location(url)
+        if not catalog_exists(url):
+            return None, f"no catalog at {shown}"
+        catalog = Catalog.open(location)
+        try:
+            entry = catalog.class_for_params(params)
+            bound = catalog.complete_to()
+        finally:
+            catalog.close()
+    except CatalogError as exc:
+        return None, f"catalog unavailable ({exc})"
+    if entry is not None:
+        if fingerprint is not None and entry.fingerprint != fingerprint:
+            return entry.id, (
+                f"{entry.id}, but its stored fingerprint differs from this net's; the catalog "
+                "may use another canonical encoding"
+            )
+        return entry.id, entry.id
+    if params.area > bound:
+        return None, f"beyond the catalog bound {bound}"
+    return None, f"not in the catalog at {shown}"
+
+
+def catalog_lookup(
+    location: str | None,
+) -> Callable[[ParameterSet, str | None], tuple[str | None, str]]:
+    """The lookup ``identify_net`` takes, for the catalog at ``location`` (read only)."""
+    return partial(_status, location=location)
+
+
+def _status(
+    params: ParameterSet, fingerprint: str | None, *, location: str | None
+) -> tuple[str | None, str]:
+    return catalog_status(params, location, fingerprint)
+
+
+__all__ = ["catalog_lookup", "catalog_status"]
