@@ -853,3 +853,19 @@ def test_exploration_report_lives_in_the_core() -> None:
     assert {k: v for k, v in printed.items() if k != "seconds"} == {
         k: v for k, v in report.items() if k != "seconds"
     }
+
+
+def test_compare_answers_same_behaviour_with_evidence() -> None:
+    # Different classes (3 and 4 tokens) with the same behaviour: both reachability graphs are
+    # one directed cycle through the 5 markings (docs/theory/behaviour.md); networkx agrees
+    # (tests/core/test_behaviour.py).
+    report = compare_json("1,2,1,3", "1,3,1,2")
+    assert report["same_class"] is False and report["same_behaviour"] is True
+    assert report["behaviour"]["state_map"] == [0, 1, 2, 3, 4]
+    # Same state and arc counts (40 and 72), different behaviour: the split names its evidence.
+    report = compare_json("3,3,1,3", "3,3,2,2")
+    assert report["same_behaviour"] is False
+    assert report["behaviour"]["evidence"] == (
+        "the nets synthesized from the state graphs are not isomorphic"
+    )
+    assert compare_json("4,2,2,3", "2,4,3,2")["same_behaviour"] is True  # same class

@@ -344,6 +344,9 @@ def _print_compare_table(report: dict[str, Any]) -> None:
             details[level],
         )
     Console(soft_wrap=False).print(table)
+    behaviour = report["same_behaviour"]
+    answer = "not decided" if behaviour is None else ("yes" if behaviour else "no")
+    typer.echo(f"same behaviour: {answer} ({report['behaviour']['evidence']})")
     ids = report.get("ids") or [None, None]
     if any(ids):
         typer.echo(f"catalog: {first} is {_or_dash(ids[0])}, {second} is {_or_dash(ids[1])}")

@@ -240,6 +240,20 @@ def compare_report(first: ParameterSet, second: ParameterSet) -> Report:
     ordered: Report = {"params": report.pop("params")}
     for level in LEVELS:
         ordered[level] = report.pop(level)
+    # Behaviour: isomorphic reachability graphs (docs/theory/behaviour.md); null beyond the
+    # state bound. Same class implies same behaviour, so only other pairs are searched.
+    from zoo.core.behaviour import BEHAVIOUR_STATE_LIMIT, compare_behaviour
+
+    if ordered["same_class"]:
+        ordered["same_behaviour"] = True
+        report["behaviour"] = {"evidence": "same class", "state_map": None}
+    else:
+        behaviour = compare_behaviour(first, second, BEHAVIOUR_STATE_LIMIT)
+        ordered["same_behaviour"] = behaviour.same
+        report["behaviour"] = {
+            "evidence": behaviour.evidence,
+            "state_map": list(behaviour.state_map) if behaviour.state_map is not None else None,
+        }
     ordered.update(report)
     return ordered
 
