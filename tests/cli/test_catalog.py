@@ -387,3 +387,24 @@ def test_interrupted_default_build_resumes_on_the_next_find(tmp_path: Path) -> N
         # from the stored classes, which an uninterrupted build would have given
         expected = catalog.count("processes = 3 and area <= 40")
     assert second.stdout == f"{expected}\n"
+
+
+def test_show_id_links_iterations_both_ways(tmp_path: Path) -> None:
+    # C(4,3,3,3) is the 3-fold temporal iteration C(α, β, 3γ, 3δ) of C(4,3,1,1) (a ring of 3
+    # individually named items and 4 free slots over the anonymous ring;
+    # docs/theory/iterations.md, docs/theory/ring-designs.md).
+    from zoo.catalog.build import build_catalog
+    from zoo.catalog.service import Catalog
+
+    location = str(tmp_path / "c21.sqlite3")
+    with Catalog.open(location, create=True) as catalog:
+        build_catalog(catalog, 21)
+        base = catalog.get("4,3,1,1").id
+        twice = catalog.get("4,3,2,2").id
+        thrice = catalog.get("4,3,3,3").id
+    shown = json.loads(invoke("show", thrice, "--db", location, "--format", "json").stdout)
+    assert shown["iteration_of"] == [{"id": base, "n": 3}]
+    assert shown["iterations"] == []  # 63 > 21: beyond the catalog
+    shown = json.loads(invoke("show", base, "--db", location, "--format", "json").stdout)
+    assert shown["iteration_of"] == []
+    assert shown["iterations"] == [{"id": twice, "n": 2}, {"id": thrice, "n": 3}]

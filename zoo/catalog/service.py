@@ -367,6 +367,11 @@ class Catalog:
                 return None
             return self._entries(connection, [class_id])[0]
 
+    def class_id_for(self, p: ParameterSet) -> str | None:
+        """The identifier of the class holding p, or None when p's area is not stored."""
+        with self.engine.connect() as connection:
+            return stored_class_id(connection, p)
+
     def class_for_fingerprint(self, fingerprint: str) -> ClassEntry | None:
         """The entry whose marked-net fingerprint (``v1:...``) is the given one, or None."""
         with self.engine.connect() as connection:

@@ -10,6 +10,8 @@ from typing import Any
 
 from zoo.catalog.identifiers import read_identifier
 from zoo.catalog.service import Catalog
+from zoo.core.iterations import class_iteration_bases, class_iterations
+from zoo.core.params import ParameterSet, parse_params
 from zoo.publish.cite import cite
 
 
@@ -40,8 +42,37 @@ def entry_report(catalog: Catalog, ref: str) -> dict[str, Any]:
         "other_classes": [c for c in frame.class_ids if c != entry.id],
     }
     report["citation"] = citation
-    report["complete_to"] = catalog.complete_to()
+    complete_to = catalog.complete_to()
+    report["complete_to"] = complete_to
+    report.update(iteration_links(catalog, parse_params(entry.label), complete_to))
     return report
+
+
+def iteration_links(
+    catalog: Catalog, label: ParameterSet, complete_to: int
+) -> dict[str, list[dict[str, Any]]]:
+    """``iteration_of``: the classes of which this class is an n-fold temporal iteration;
+    ``iterations``: the stored classes that are n-fold iterations of it (area n·A up to the
+    complete bound). Each a list of ``{"id", "n"}`` sorted by n, then identifier
+    (docs/theory/iterations.md)."""
+
+    def linked(pairs: list[tuple[ParameterSet, int]]) -> list[dict[str, Any]]:
+        found = []
+        for member, n in pairs:
+            class_id = catalog.class_id_for(member)
+            if class_id is not None:
+                found.append({"id": class_id, "n": n})
+        return sorted(found, key=lambda link: (link["n"], _id_order(link["id"])))
+
+    return {
+        "iteration_of": linked(class_iteration_bases(label)),
+        "iterations": linked(class_iterations(label, complete_to)),
+    }
+
+
+def _id_order(identifier: str) -> tuple[int, int]:
+    area, _, rank = identifier[2:].partition("-")
+    return (int(area), int(rank))
 
 
 __all__ = ["entry_report"]
