@@ -435,12 +435,12 @@ def compare_behaviour(
     cycles = [cycle_order(g) for g in graphs]
     if cycles[0] is not None and cycles[1] is not None:
         # Two directed cycles of the same length: walk both from the initial marking.
-        mapping = [0] * graphs[0].state_count
+        walk = [0] * graphs[0].state_count
         for first_state, second_state in zip(cycles[0], cycles[1], strict=True):
-            mapping[first_state] = second_state
-        check_state_map(graphs[0], graphs[1], mapping)
+            walk[first_state] = second_state
+        check_state_map(graphs[0], graphs[1], walk)
         return BehaviourComparison(
-            True, "both state graphs are one directed cycle of the same length", tuple(mapping)
+            True, "both state graphs are one directed cycle of the same length", tuple(walk)
         )
     profiles = [behaviour_profile(g) for g in graphs]
     difference = profiles[0].first_difference(profiles[1])
