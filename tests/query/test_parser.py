@@ -476,3 +476,21 @@ def test_docs_page_lists_every_field_and_its_example() -> None:
     for field in FIELDS:
         assert f"| `{field.name}` |" in page
         assert f"`{field.example}`" in page
+
+
+@pytest.mark.parametrize(
+    ("query", "plain"),
+    [
+        # leading zeros past Python's 4,300-digit int() conversion limit
+        ("area = " + "0" * 5000 + "7", "area = 7"),
+        ("slowness = 1/" + "0" * 5000 + "3", "slowness = 1/3"),
+        ("states > " + "0" * 5000 + "2^3", "states > 2^3"),
+    ],
+)
+def test_numbers_with_thousands_of_leading_zeros_read_exactly(query: str, plain: str) -> None:
+    assert parse_query(query) == parse_query(plain)
+
+
+def test_a_denominator_longer_than_the_digit_limit_is_refused() -> None:
+    with pytest.raises(QuerySyntaxError, match="more than 1000 digits"):
+        parse_query("slowness = 1/" + "7" * 5000)

@@ -573,3 +573,22 @@ def test_sort_and_columns_on_postgresql(postgres_engine: Engine) -> None:
     assert ordered[0] == next(c["id"] for c in DATA.classes if c["area"] == 200)
     # C(2,1,1,1) and its swap C(1,2,1,1) have w = 1/3 and -1/3 (docs/theory/check-values.md table).
     assert slowness[class_of(ParameterSet(2, 1, 1, 1))] == "-1/3..1/3"
+
+
+@pytest.mark.postgres
+@pytest.mark.parametrize(
+    "query",
+    [
+        # INTEGER columns are 32-bit on PostgreSQL: literals past 2^31 - 1 once failed there with
+        # "integer out of range" while SQLite answered (issue: same answer on both stores).
+        "area = 2147483648",
+        "area = 1e10",
+        "area < 2147483648 and loop >= -2147483649",
+        "processes != 3000000000 and alpha = 4",
+    ],
+)
+def test_literals_past_32_bits_answer_alike_on_both_stores(
+    postgres_engine: Engine, sqlite_engine: Engine, query: str
+) -> None:
+    tree = parse_query(query)
+    assert run(postgres_engine, tree) == evaluate(tree) == run(sqlite_engine, tree)

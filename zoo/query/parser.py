@@ -269,6 +269,11 @@ def _number_value(match: re.Match[str], query: str, position: int) -> Fraction:
     sign = -1 if text.startswith("-") else 1
     whole, frac = match.group("int"), match.group("frac") or ""
     exp, power, den = match.group("exp"), match.group("pow"), match.group("den")
+    # Leading zeros carry no value; without them every digit string below is short enough for
+    # int(), whose conversion limit is 4,300 digits.
+    whole = whole.lstrip("0") or "0"
+    if den is not None:
+        den = den.lstrip("0") or "0"
     if power is not None and frac:
         raise QuerySyntaxError(
             f"Number '{text}' raises a decimal to a power; write whole-number powers such as "
@@ -289,6 +294,8 @@ def _number_value(match: re.Match[str], query: str, position: int) -> Fraction:
         base = int(whole)
         size = len(str(base)) * int(power) if len(power) < 6 else MAX_DIGITS + 1
         digits = size if base > 1 else 1
+    if den is not None:
+        digits = max(digits, len(den))
     if digits > MAX_DIGITS:
         raise QuerySyntaxError(
             f"Number '{text}' has more than {MAX_DIGITS} digits; no catalog value is that large",

@@ -25,7 +25,7 @@ So EXISTS stays: no query gets slower by much, and narrow lookups stay instant.
 Every literal is a bound parameter: exact big integers become their sortable key text
 (``models.sortable_key``), fractions are compared by cross-multiplication in 64-bit integers
 (denominators in the database are positive), and integers beyond any stored value fold to a
-constant truth value (SQLite binds at most 64 bits).
+constant truth value (INTEGER columns are 32-bit on PostgreSQL).
 """
 
 from __future__ import annotations
@@ -81,8 +81,10 @@ _FRAMES = _TABLES["frames"]
 _READINGS = _TABLES["readings"]
 _PARAMETER_SETS = _TABLES["parameter_sets"]
 
-#: Integer columns hold values far below this; literals beyond it fold to true or false.
-_INTEGER_LIMIT = 2**62
+#: Integer columns are 32-bit on PostgreSQL (INTEGER) and every stored value fits them, so a
+#: literal beyond this bound folds to true or false; binding it would fail there ("integer out
+#: of range") while SQLite answers, and both stores must give the same answer.
+_INTEGER_LIMIT = 2**31 - 1
 
 _OPERATORS: dict[str, Callable[[Any, Any], ColumnElement[bool]]] = {
     "=": operator.eq,
