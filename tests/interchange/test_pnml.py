@@ -26,7 +26,6 @@ from zoo.core.params import ParameterSet
 from zoo.errors import FormatError
 from zoo.interchange.dot import dot_document
 from zoo.interchange.netjson import json_document
-from zoo.interchange.netmodel import drawing_coordinates
 from zoo.interchange.pnml import (
     GRID,
     PNML_NAMESPACE,
@@ -35,6 +34,7 @@ from zoo.interchange.pnml import (
     pnml_document,
     read_pnml,
 )
+from zoo.pictures.layout import drawing_coordinates
 
 DATA = Path(__file__).parents[1] / "data" / "pnml"
 NS = "{" + PNML_NAMESPACE + "}"

@@ -125,37 +125,9 @@ def test_parallelogram_geometry_follows_the_drawing_convention() -> None:
     assert parallelogram_corners(C4223) == ((0, 0), (4, -2), (6, 1), (2, 3))
 
 
-def test_dot_net_parses_with_the_right_nodes_and_arcs() -> None:
-    text = draw(C4223, "net", "dot").decode()
-    (graph,) = pydot.graph_from_dot_data(text)
-    nodes = [n for n in graph.get_nodes() if n.get_name() not in {"node", "edge", "graph"}]
-    assert len(nodes) == 3 * C4223.area  # A transitions and 2A places (docs/theory/folding.md)
-    assert len(graph.get_edges()) == 4 * C4223.area
-    marked = [n for n in nodes if n.get("tokens") == "1"]
-    assert len(marked) == C4223.alpha + C4223.beta
-
-
-def test_dot_parallelogram_pins_positions() -> None:
-    (graph,) = pydot.graph_from_dot_data(draw(C4223, "parallelogram", "dot").decode())
-    pinned = [n for n in graph.get_nodes() if n.get("pos")]
-    assert len(pinned) == 3 * C4223.area
-    assert all(n.get("pos").strip('"').endswith("!") for n in pinned)
-
-
-def test_dot_processes_has_one_cluster_per_process() -> None:
-    p = ParameterSet(3, 2, 6, 6)  # regular, beta = 2 processes (docs/theory/processes.md)
-    (graph,) = pydot.graph_from_dot_data(draw(p, "processes", "dot").decode())
-    clusters = graph.get_subgraphs()
-    assert len(clusters) == p.beta
-    assert sum(len(c.get_nodes()) for c in clusters) == p.area
-
-
 def test_states_view_matches_theory_table() -> None:
     # docs/theory/check-values.md table: C(4,2,2,3) has 40 states and 64 edges.
-    (graph,) = pydot.graph_from_dot_data(draw(C4223, "states", "dot").decode())
-    nodes = [n for n in graph.get_nodes() if n.get_name() not in {"node", "edge", "graph"}]
-    assert len(nodes) == 40
-    assert len(graph.get_edges()) == 64
+    # The DOT text of this view: tests/interchange/test_dot.py.
     assert _svg_ids(draw(C4223, "states", "svg"))["state"] == 40
     _, states = state_graph(C4223)
     assert len(states.states[0]) == C4223.alpha + C4223.beta  # M0 has alpha + beta tokens

@@ -1,4 +1,5 @@
-"""Command ``draw``: pictures of a cycloid (``zoo.pictures.views``) written to a file."""
+"""Command ``draw``: pictures of a cycloid (``zoo.pictures.views``; DOT text from
+``zoo.interchange.dot``) written to a file."""
 
 from __future__ import annotations
 
@@ -82,7 +83,12 @@ def draw(
     try:
         chosen = _picture_format(fmt, output)
         p = resolve_params(" ".join(ref), db)
-        data = draw_picture(p, view.value, chosen.value)
+        if chosen is PictureFormat.dot:
+            from zoo.interchange.dot import picture_dot
+
+            data = picture_dot(p, view.value).encode()
+        else:
+            data = draw_picture(p, view.value, chosen.value)
         if output is None:
             if chosen is PictureFormat.png:
                 raise ZooError(

@@ -11,7 +11,7 @@ from __future__ import annotations
 import json
 from typing import TYPE_CHECKING
 
-from zoo.interchange.netmodel import drawing_coordinates
+from zoo.pictures.layout import drawing_coordinates
 
 if TYPE_CHECKING:
     from zoo.core.net import CycloidNet

@@ -3,7 +3,7 @@
 Readers (``pnml``, ``nettext``) produce a ``PlaceTransitionNet``: the net exactly as the file
 states it, arc weights and all, before any check that it is a marked graph. Deciding what the
 net *is* belongs to ``zoo.interchange.identify``. Writers (``pnml``, ``nettext``, ``dot``,
-``jsonnet``) take a ``CycloidNet`` from ``zoo.core.net.build_net``.
+``netjson``) take a ``CycloidNet`` from ``zoo.core.net.build_net``.
 
 Every reader goes through ``read_limited``: a file larger than ``MAX_INPUT_BYTES`` is refused
 before a single byte is parsed (docs/pnml.md, "Safe input").
@@ -14,12 +14,8 @@ from __future__ import annotations
 import os
 from dataclasses import dataclass
 from pathlib import Path
-from typing import TYPE_CHECKING
 
 from zoo.errors import FormatError
-
-if TYPE_CHECKING:
-    from zoo.core.net import CycloidNet
 
 #: Largest input file accepted by any reader: 10 MiB. zoo's own PNML export takes about 850
 #: bytes per transition, so every exported net up to area ~12,000 reads back. That is ten times
@@ -79,30 +75,6 @@ class PlaceTransitionNet:
         return dict(self.labels).get(element, element)
 
 
-def drawing_coordinates(
-    net: CycloidNet,
-) -> tuple[list[tuple[float, float]], list[tuple[float, float]]]:
-    """Positions of the transitions and places of a cycloid net, time pointing up.
-
-    Transition (xi, eta) sits at (xi - eta, xi + eta): space to the right, time up
-    (docs/theory/README.md
-    §1, Drawing), so forward arcs lead up-right and backward arcs up-left. A place sits at the
-    midpoint of its arc in the Petri space, (xi + 1/2, eta) for a forward and (xi, eta + 1/2)
-    for a backward place. No two nodes coincide: a forward place has a half-integer xi, a
-    backward place a half-integer eta, a transition neither.
-    Writers scale these units; screen formats also flip y (y grows downwards there).
-    """
-    transitions = [(float(xi - eta), float(xi + eta)) for xi, eta in net.coordinates]
-    places: list[tuple[float, float]] = []
-    for j, kind in enumerate(net.kinds):
-        xi, eta = net.coordinates[net.pre[j]]
-        if kind == "forward":
-            places.append((xi + 0.5 - eta, xi + 0.5 + eta))
-        else:
-            places.append((xi - eta - 0.5, xi + eta + 0.5))
-    return transitions, places
-
-
 def read_limited(path: str | os.PathLike[str], limit: int = MAX_INPUT_BYTES) -> bytes:
     """The bytes of a file, refused with ``FormatError`` when it is larger than ``limit``.
 
@@ -153,7 +125,6 @@ __all__ = [
     "MAX_INPUT_BYTES",
     "count_too_large",
     "Arc",
-    "drawing_coordinates",
     "PlaceTransitionNet",
     "looks_like_xml",
     "read_limited",

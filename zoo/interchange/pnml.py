@@ -2,10 +2,10 @@
 
 Writing follows the PT-net grammar of the standard: ``pnml/net[@id,@type]/page`` holding
 ``place``, ``transition`` and ``arc`` elements with ``name/text``, ``initialMarking/text`` and
-``graphics/position[@x,@y]``. Positions lay the net out on its fundamental parallelogram with
-time pointing up (docs/theory/petri-space.md, Drawing): transition (xi, eta) sits at x = S*(xi -
-eta),
-y = -S*(xi + eta) in screen coordinates, a place at the midpoint of its arc in the Petri space.
+``graphics/position[@x,@y]``. Positions are the parallelogram layout of zoo.pictures.layout, the
+one the pictures and the DOT text use, with time pointing up (docs/theory/petri-space.md,
+Drawing): transition (xi, eta) sits at x = GRID*(xi - eta), y = -GRID*(xi + eta) in screen
+coordinates (shifted by a margin), a place at the midpoint of its arc in the Petri space.
 
 Reading is defensive (docs/pnml.md, "Safe input"): the size limit is applied before parsing,
 defusedxml refuses entity declarations (entity expansion, external entities), and everything a
@@ -34,9 +34,9 @@ from zoo.interchange.netmodel import (
     Arc,
     PlaceTransitionNet,
     count_too_large,
-    drawing_coordinates,
     read_limited,
 )
+from zoo.pictures.layout import screen_positions
 
 if TYPE_CHECKING:
     from zoo.core.net import CycloidNet
@@ -82,24 +82,6 @@ def _number(value: float) -> str:
     return str(int(value)) if float(value).is_integer() else f"{value:.1f}"
 
 
-def screen_positions(
-    net: CycloidNet,
-) -> tuple[list[tuple[float, float]], list[tuple[float, float]]]:
-    """PNML positions of the transitions and places, in screen coordinates (y grows down).
-
-    ``drawing_coordinates`` scaled by ``GRID``, y flipped so that time points up, and shifted
-    so that ``MARGIN`` stays free at the top left (every position is positive).
-    """
-    transitions, places = drawing_coordinates(net)
-    xs = [x for x, _ in transitions + places]
-    ys = [-y for _, y in transitions + places]
-    dx, dy = MARGIN - GRID * min(xs), MARGIN - GRID * min(ys)
-    return (
-        [(GRID * x + dx, -GRID * y + dy) for x, y in transitions],
-        [(GRID * x + dx, -GRID * y + dy) for x, y in places],
-    )
-
-
 def net_identifier(net: CycloidNet) -> str:
     """The PNML id of a cycloid's net, e.g. ``cycloid_4_2_2_3`` (an XML name, no brackets)."""
     return "cycloid_" + "_".join(str(v) for v in net.params.as_tuple())
@@ -129,7 +111,7 @@ def pnml_document(net: CycloidNet) -> str:
         delta=str(p.delta),
     )
     page = _sub(element, "page", id="page")
-    transition_at, place_at = screen_positions(net)
+    transition_at, place_at = screen_positions(net, GRID, MARGIN)
     for name, (x, y), tokens in zip(net.places, place_at, net.tokens, strict=True):
         place = _sub(page, "place", id=name)
         _text_label(place, "name", name)
@@ -398,7 +380,6 @@ def read_pnml(path: str | os.PathLike[str], limit: int = MAX_INPUT_BYTES) -> Pla
 __all__ = [
     "PNML_NAMESPACE",
     "PTNET_TYPE",
-    "screen_positions",
     "parse_pnml",
     "pnml_document",
     "read_pnml",

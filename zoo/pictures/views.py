@@ -1,7 +1,8 @@
 """Pictures of a cycloid: its fundamental parallelogram, its net, its processes, its states.
 
-Four views, each as SVG or PNG (matplotlib, Agg backend) or as Graphviz DOT text written here
-(Graphviz itself is not needed to produce it):
+Four views, each as SVG or PNG (matplotlib, Agg backend); the same views as Graphviz DOT text are
+zoo.interchange.dot's (``picture_dot``). Node positions come from zoo.pictures.layout and colours
+from zoo.pictures.style, which the DOT text shares:
 
 * ``parallelogram``: the fundamental parallelogram O, P, Q = P + R, R in the Petri space with
   the lattice vectors P = (alpha, -beta) and R = (gamma, delta), the A folded transitions (one
@@ -29,19 +30,30 @@ from __future__ import annotations
 import io
 import math
 import re
-from collections import deque
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 from itertools import pairwise
 from typing import Any
 
-from zoo.core.algebra import lattice_key, representative
 from zoo.core.invariants import is_regular, reachable_state_count
 from zoo.core.params import ParameterSet
 from zoo.errors import LimitExceeded, ParameterError
+from zoo.pictures import style
+from zoo.pictures.layout import (
+    Point,
+    along,
+    drawing_coordinates,
+    parallelogram_arcs,
+    parallelogram_corners,
+    petri_to_page,
+    ring_place_points,
+    ring_positions,
+    state_layers,
+    state_positions,
+)
 
 VIEWS = ("parallelogram", "net", "processes", "states")
-FORMATS = ("svg", "png", "dot")
+FORMATS = ("svg", "png")
 
 #: Largest area drawn in the net views: beyond it nodes and labels no longer fit a page.
 DRAW_AREA_LIMIT = 400
@@ -51,23 +63,6 @@ DRAW_STATE_LIMIT = 300
 LABEL_LIMIT = 64
 #: Where along an arc of the states view its transition label sits (0 source, 1 target).
 STATE_LABEL_AT = 0.3
-
-Point = tuple[float, float]
-
-_FORWARD = "#1f5fa8"  # forward places and arcs (the items, cars)
-_BACKWARD = "#c0392b"  # backward places and arcs (the free slots, gaps)
-_PROCESS_COLOURS = (
-    "#1f77b4",
-    "#d62728",
-    "#2ca02c",
-    "#9467bd",
-    "#ff7f0e",
-    "#17becf",
-    "#8c564b",
-    "#e377c2",
-    "#7f7f7f",
-    "#bcbd22",
-)
 
 
 # --- the net, in the form the pictures need ------------------------------------------------
@@ -119,20 +114,15 @@ def draw(p: ParameterSet, view: str = "parallelogram", fmt: str = "svg") -> byte
     Raises ParameterError for an unknown view or format, or for the processes view of a
     cycloid that is not regular; LimitExceeded for a system too large to draw.
     """
-    if view not in VIEWS:
-        raise ParameterError(f"unknown view {view!r}; choose one of {', '.join(VIEWS)}")
     if fmt not in FORMATS:
-        raise ParameterError(f"unknown picture format {fmt!r}; choose one of {', '.join(FORMATS)}")
-    if view == "processes" and not is_regular(p):
+        hint = " (DOT text: zoo.interchange.dot.picture_dot)" if fmt == "dot" else ""
         raise ParameterError(
-            f"the processes view needs a regular cycloid (beta divides delta), but {p} has "
-            f"beta = {p.beta}, delta = {p.delta}; use --view net or a regular cycloid"
+            f"unknown picture format {fmt!r}; choose one of {', '.join(FORMATS)}{hint}"
         )
+    check_view(p, view)
     if view == "states":
         return _draw_states(p, fmt)
     net = net_picture(p)
-    if fmt == "dot":
-        return net_dot(net, view).encode()
     if view == "parallelogram":
         return _render(
             lambda canvas: _plot_parallelogram(canvas, net), _parallelogram_size(net), fmt
@@ -142,45 +132,24 @@ def draw(p: ParameterSet, view: str = "parallelogram", fmt: str = "svg") -> byte
     )
 
 
+def check_view(p: ParameterSet, view: str) -> None:
+    """Refuse (ParameterError) an unknown view, or the processes view of a cycloid that is not
+    regular; shared by every writer of a view, pictures and DOT text alike."""
+    if view not in VIEWS:
+        raise ParameterError(f"unknown view {view!r}; choose one of {', '.join(VIEWS)}")
+    if view == "processes" and not is_regular(p):
+        raise ParameterError(
+            f"the processes view needs a regular cycloid (beta divides delta), but {p} has "
+            f"beta = {p.beta}, delta = {p.delta}; use --view net or a regular cycloid"
+        )
+
+
 def draw_net_svg(p: ParameterSet, view: str = "net") -> str:
     """SVG text of the net of C(p) (for ``zoo export --format svg``)."""
     return draw(p, view, "svg").decode()
 
 
 # --- parallelogram view ------------------------------------------------------------------
-
-
-def petri_to_page(point: tuple[float, float]) -> Point:
-    """Page position of the Petri point (xi, eta): space xi - eta across, time xi + eta up."""
-    xi, eta = point
-    return (xi - eta, xi + eta)
-
-
-def parallelogram_corners(p: ParameterSet) -> tuple[tuple[int, int], ...]:
-    """O, P, Q = P + R, R of the fundamental parallelogram (docs/theory/folding.md)."""
-    return ((0, 0), (p.alpha, -p.beta), (p.alpha + p.gamma, p.delta - p.beta), (p.gamma, p.delta))
-
-
-@dataclass(frozen=True)
-class PlacedArc:
-    """One place between two drawn transition positions, for the parallelogram view."""
-
-    place: int
-    source: tuple[int, int]  # Petri point of the input transition (a representative)
-    target: tuple[int, int]  # Petri point of the output transition as reached by the arc
-    folded: bool  # the target lies outside the parallelogram: drawn as a dashed copy
-
-
-def parallelogram_arcs(net: NetPicture) -> list[PlacedArc]:
-    """Every place with the unfolded step it makes: (xi+1, eta) forward, (xi, eta+1) backward."""
-    p = net.params
-    arcs = []
-    for s, kind in enumerate(net.kinds):
-        xi, eta = net.coordinates[net.pre[s]]
-        target = (xi + 1, eta) if kind == "forward" else (xi, eta + 1)
-        folded = representative(p, target) != target
-        arcs.append(PlacedArc(s, (xi, eta), target, folded))
-    return arcs
 
 
 def _parallelogram_extent(p: ParameterSet) -> tuple[float, float, float, float]:
@@ -226,8 +195,8 @@ def _plot_parallelogram(canvas: _Canvas, net: NetPicture) -> None:
     poly = Polygon(
         corners,
         closed=True,
-        facecolor="#f3f1e7",
-        edgecolor="#8a8160",
+        facecolor=style.PARALLELOGRAM_FACE.colour,
+        edgecolor=style.PARALLELOGRAM_EDGE.colour,
         linewidth=1.0,
         linestyle="--",
         zorder=0,
@@ -241,7 +210,7 @@ def _plot_parallelogram(canvas: _Canvas, net: NetPicture) -> None:
             xytext=(-10, -4) if name in "OR" else (6, -4),
             textcoords="offset points",
             fontsize=11 * s / 0.75 + 1,
-            color="#5d5640",
+            color=style.LATTICE_VECTOR.colour,
             fontweight="bold",
             ha="center",
             va="top",
@@ -256,11 +225,12 @@ def _plot_parallelogram(canvas: _Canvas, net: NetPicture) -> None:
     ghosts: dict[tuple[int, int], int] = {}
     place_points: list[Point] = []
     place_colours: list[str] = []
+    _, place_at = drawing_coordinates(net)
     for arc in parallelogram_arcs(net):
         source = petri_to_page(arc.source)
         target = petri_to_page(arc.target)
-        middle = ((source[0] + target[0]) / 2, (source[1] + target[1]) / 2)
-        colour = _FORWARD if net.kinds[arc.place] == "forward" else _BACKWARD
+        middle = place_at[arc.place]
+        colour = style.place_ink(net.kinds[arc.place]).colour
         canvas.arc([source, middle], colour, gap, gap)
         canvas.arc([middle, target], colour, gap, gap, dashed=arc.folded)
         place_points.append(middle)
@@ -276,7 +246,7 @@ def _plot_parallelogram(canvas: _Canvas, net: NetPicture) -> None:
         marker="s",
         size=marker,
         face="white",
-        edge="#777777",
+        edge=style.FOLDED_COPY.colour,
         linewidth=0.8,
         linestyle="--",
         zorder=3,
@@ -288,8 +258,8 @@ def _plot_parallelogram(canvas: _Canvas, net: NetPicture) -> None:
         transition_points,
         marker="s",
         size=marker,
-        face="#222222",
-        edge="#222222",
+        face=style.TRANSITION.colour,
+        edge=style.TRANSITION.colour,
         zorder=4,
     )
     if show_labels:
@@ -300,7 +270,7 @@ def _plot_parallelogram(canvas: _Canvas, net: NetPicture) -> None:
                 xytext=(0, marker * 0.7),
                 textcoords="offset points",
                 fontsize=max(5.0, 6.5 * s / 0.75),
-                color="#666666",
+                color=style.FAINT_LABEL,
                 ha="center",
                 va="bottom",
             )
@@ -313,7 +283,7 @@ def _plot_parallelogram(canvas: _Canvas, net: NetPicture) -> None:
                 fontsize=max(5.0, 7.5 * s / 0.75),
                 ha="left",
                 va="center",
-                color="#111111",
+                color=style.LABEL,
                 zorder=6,
             )
     ax.set_title(
@@ -332,7 +302,7 @@ def _lattice_vector(ax: Any, start: Point, end: Point) -> None:
         xytext=start,
         arrowprops={
             "arrowstyle": "-|>,head_width=0.35,head_length=0.7",
-            "color": "#5d5640",
+            "color": style.LATTICE_VECTOR.colour,
             "linewidth": 1.8,
             "shrinkA": 0,
             "shrinkB": 0,
@@ -342,28 +312,6 @@ def _lattice_vector(ax: Any, start: Point, end: Point) -> None:
 
 
 # --- net and processes views ------------------------------------------------------------
-
-
-def ring_positions(net: NetPicture) -> tuple[list[Point], list[int]]:
-    """Page positions of the transitions on concentric rings and the ring of each transition.
-
-    The Hermite coordinates (xi', eta') with 0 <= xi' < A/g, 0 <= eta' < g
-    (docs/theory/lattice-key.md)
-    put transition (xi', eta') on ring eta' at angle 2 pi xi' g / A, so every forward cycle is
-    one ring (g = gcd(beta, delta) rings, docs/theory/processes.md).
-    """
-    key = lattice_key(net.params)
-    period = key.period
-    radius0 = max(2.0, period * 1.15 / math.pi)
-    positions: list[Point] = []
-    rings: list[int] = []
-    for point in net.coordinates:
-        xi, eta = key.reduce(point)
-        radius = radius0 + eta * max(2.2, radius0 * 0.35)
-        angle = math.pi / 2 + 2 * math.pi * xi / period
-        positions.append((radius * math.cos(angle), radius * math.sin(angle)))
-        rings.append(eta)
-    return positions, rings
 
 
 def _rings_extent(net: NetPicture) -> float:
@@ -391,9 +339,9 @@ def _plot_rings(canvas: _Canvas, net: NetPicture, coloured: bool) -> None:
         source, target = positions[a], positions[b]
         middle = points[place]
         if kind == "forward":
-            colour = _PROCESS_COLOURS[rings[a] % len(_PROCESS_COLOURS)] if coloured else _FORWARD
+            colour = style.process_ink(rings[a]).colour if coloured else style.FORWARD.colour
         else:
-            colour = "#9a9a9a" if coloured else _BACKWARD
+            colour = style.RELEASE.colour if coloured else style.BACKWARD.colour
         wrap = kind == "backward" and rings[b] < rings[a]
         canvas.arc([source, middle], colour, gap, gap, dashed=wrap)
         canvas.arc([middle, target], colour, gap, gap, dashed=wrap)
@@ -401,7 +349,7 @@ def _plot_rings(canvas: _Canvas, net: NetPicture, coloured: bool) -> None:
         place_colours.append(colour)
     canvas.places(net, place_points, place_colours, marker)
     colours = [
-        _PROCESS_COLOURS[ring % len(_PROCESS_COLOURS)] if coloured else "#222222" for ring in rings
+        style.process_ink(ring).colour if coloured else style.TRANSITION.colour for ring in rings
     ]
     canvas.nodes(
         "transitions",
@@ -435,7 +383,7 @@ def _plot_rings(canvas: _Canvas, net: NetPicture, coloured: bool) -> None:
             Line2D(
                 [0],
                 [0],
-                color=_PROCESS_COLOURS[i % len(_PROCESS_COLOURS)],
+                color=style.process_ink(i).colour,
                 marker="s",
                 linewidth=2,
                 label=f"process {i} ({length} steps)",
@@ -444,7 +392,11 @@ def _plot_rings(canvas: _Canvas, net: NetPicture, coloured: bool) -> None:
         ]
         handles.append(
             Line2D(
-                [0], [0], color="#9a9a9a", linewidth=2, label="release messages (backward places)"
+                [0],
+                [0],
+                color=style.RELEASE.colour,
+                linewidth=2,
+                label="release messages (backward places)",
             )
         )
         if count > 1:
@@ -452,7 +404,7 @@ def _plot_rings(canvas: _Canvas, net: NetPicture, coloured: bool) -> None:
                 Line2D(
                     [0],
                     [0],
-                    color="#9a9a9a",
+                    color=style.RELEASE.colour,
                     linewidth=2,
                     linestyle="--",
                     label=f"release from process {count - 1} to process 0",
@@ -463,59 +415,6 @@ def _plot_rings(canvas: _Canvas, net: NetPicture, coloured: bool) -> None:
     else:
         title = f"{p}: the net, A = {p.area} transitions, {len(net.places)} places"
     ax.set_title(title + " (forward arcs counter-clockwise)", fontsize=_title_size(canvas, 10))
-
-
-def ring_place_points(
-    net: NetPicture, positions: Sequence[Point] | None = None, rings: Sequence[int] | None = None
-) -> list[Point]:
-    """Page positions of the places in the ``net`` and ``processes`` views.
-
-    A forward place sits on its ring halfway between its transitions. A backward arc to the
-    next ring keeps its place halfway; an arc from the outermost ring back to the innermost one
-    crosses the picture, so its place stays near its input transition (the arc is dashed).
-    All chords within one ring (one forward cycle) skip the same number of transitions, so they
-    are tangent to one inner circle at their midpoints; places there would vanish into that
-    dense envelope of arcs, so they sit a quarter of the way along, where the chords spread.
-    """
-    if positions is None or rings is None:
-        positions, rings = ring_positions(net)
-    points: list[Point] = []
-    for place, kind in enumerate(net.kinds):
-        a, b = net.pre[place], net.post[place]
-        source, target = positions[a], positions[b]
-        if kind == "forward":
-            points.append(_ring_midpoint(source, target))
-        elif rings[b] == rings[a] + 1:
-            points.append(_bow(source, target, 0.0))
-        elif rings[b] < rings[a]:
-            points.append(_along(source, target, 0.22))
-        else:
-            points.append(_along(source, target, 0.25))
-    return points
-
-
-def _ring_midpoint(source: Point, target: Point) -> Point:
-    """The point on the ring halfway along the counter-clockwise step from source to target."""
-    radius = math.hypot(*source)
-    start = math.atan2(source[1], source[0])
-    step = (math.atan2(target[1], target[0]) - start) % (2 * math.pi)
-    angle = start + step / 2
-    return (radius * math.cos(angle), radius * math.sin(angle))
-
-
-def _along(source: Point, target: Point, fraction: float) -> Point:
-    """The point ``fraction`` of the way from source to target."""
-    return (
-        source[0] + (target[0] - source[0]) * fraction,
-        source[1] + (target[1] - source[1]) * fraction,
-    )
-
-
-def _bow(source: Point, target: Point, amount: float) -> Point:
-    """The midpoint of source-target moved to the left of the arc by ``amount`` of its length."""
-    mx, my = (source[0] + target[0]) / 2, (source[1] + target[1]) / 2
-    dx, dy = target[0] - source[0], target[1] - source[1]
-    return (mx - dy * amount, my + dx * amount)
 
 
 # --- states view ------------------------------------------------------------------------
@@ -552,41 +451,9 @@ def state_graph(p: ParameterSet, limit: int = DRAW_STATE_LIMIT) -> tuple[NetPict
     return net, StateGraph(states, arcs)
 
 
-def state_layers(graph: StateGraph) -> list[int]:
-    """Breadth-first distance of every state from the initial marking."""
-    successors: dict[int, list[int]] = {}
-    for a, b, _ in graph.arcs:
-        successors.setdefault(a, []).append(b)
-    depth = {0: 0}
-    queue = deque([0])
-    while queue:
-        a = queue.popleft()
-        for b in successors.get(a, []):
-            if b not in depth:
-                depth[b] = depth[a] + 1
-                queue.append(b)
-    return [depth.get(i, -1) for i in range(len(graph.states))]
-
-
-def state_positions(graph: StateGraph) -> list[Point]:
-    """Layered layout: the initial marking at the bottom, each BFS layer one row higher."""
-    layers = state_layers(graph)
-    rows: dict[int, list[int]] = {}
-    for i, layer in enumerate(layers):
-        rows.setdefault(layer, []).append(i)
-    positions: list[Point] = [(0.0, 0.0)] * len(graph.states)
-    for layer, members in rows.items():
-        width = len(members)
-        for k, i in enumerate(members):
-            positions[i] = ((k - (width - 1) / 2) * 2.0, layer * 1.25)
-    return positions
-
-
 def _draw_states(p: ParameterSet, fmt: str) -> bytes:
     net, graph = state_graph(p)
-    if fmt == "dot":
-        return states_dot(net, graph).encode()
-    positions = state_positions(graph)
+    positions = state_positions(len(graph.states), graph.arcs)
     xs = [x for x, _ in positions]
     ys = [y for _, y in positions]
     x0, x1, y0, y1 = min(xs) - 1.5, max(xs) + 1.5, min(ys) - 1.5, max(ys) + 1.5
@@ -601,10 +468,10 @@ def _plot_states(
     marker = 15 * s / 0.7
     gap = marker / 2 + 1
     labelled = len(graph.states) <= LABEL_LIMIT
-    layers = state_layers(graph)
+    layers = state_layers(len(graph.states), graph.arcs)
     for a, b, t in graph.arcs:
         upward = layers[b] > layers[a]
-        colour = "#333333" if upward else "#b07d2b"
+        colour = style.STEP_UP.colour if upward else style.STEP_BACK.colour
         # Arcs back to earlier layers (the system is reversible, docs/theory/cycles-and-tokens.md)
         # bow out to
         # the side so that they do not run over the layers in between.
@@ -613,7 +480,7 @@ def _plot_states(
         if labelled and upward and len(graph.arcs) <= 2 * LABEL_LIMIT:
             # A third of the way from the source, not halfway: two arcs that cross between
             # the same two layers cross at their midpoints, so their labels would coincide.
-            mx, my = _along(positions[a], positions[b], STATE_LABEL_AT)
+            mx, my = along(positions[a], positions[b], STATE_LABEL_AT)
             ax.annotate(
                 net.transitions[t],
                 (mx, my),
@@ -629,7 +496,7 @@ def _plot_states(
                     "alpha": 0.85,
                 },
             )
-    faces = ["#f7d774" if i == 0 else "white" for i in range(len(positions))]
+    faces = [style.INITIAL_STATE.colour if i == 0 else "white" for i in range(len(positions))]
     canvas.nodes(
         "states",
         [f"state-{i}" for i in range(len(positions))],
@@ -637,7 +504,7 @@ def _plot_states(
         marker="o",
         size=marker,
         face=faces,
-        edge="#222222",
+        edge=style.STATE.colour,
         linewidth=1.0,
         zorder=4,
     )
@@ -766,8 +633,8 @@ class _Canvas:
             [points[i] for i in marked],
             marker="o",
             size=max(marker * 0.5, 2.5),
-            face="#000000",
-            edge="#000000",
+            face=style.TOKEN.colour,
+            edge=style.TOKEN.colour,
             zorder=5,
         )
 
@@ -897,98 +764,3 @@ def _links_to_ids(svg: bytes) -> bytes:
     the only links in our pictures are those, so every ``</a>`` closes one of them.
     """
     return _LINK.sub(rb'<g id="\1">', svg).replace(b"</a>", b"</g>")
-
-
-# --- DOT text ---------------------------------------------------------------------------
-
-
-def _dot_id(text: str) -> str:
-    """A DOT double-quoted identifier (Graphviz DOT language: quotes and backslashes escaped)."""
-    return '"' + text.replace("\\", "\\\\").replace('"', '\\"') + '"'
-
-
-def net_dot(net: NetPicture, view: str = "net") -> str:
-    """DOT text of the net: transitions as boxes, places as circles, tokens as filled dots.
-
-    In the parallelogram view every node carries ``pos="x,y!"`` (inches) from the Petri-space
-    layout, which ``neato -n`` keeps; in the processes view each process is a cluster.
-    """
-    p = net.params
-    lines = [f"digraph {_dot_id(f'{p} {view}')} {{"]
-    lines.append(f"  label={_dot_id(f'{p}: {view} view, A = {p.area}')};")
-    lines.append('  node [fontname="Helvetica", fontsize=10];')
-    positions: Sequence[Point] | None = None
-    rings: list[int] = []
-    if view == "parallelogram":
-        positions = [petri_to_page(c) for c in net.coordinates]
-    if view == "processes":
-        _, rings = ring_positions(net)
-    transition_lines = []
-    for t, name in enumerate(net.transitions):
-        attrs = [
-            f"label={_dot_id(name)}",
-            "shape=box",
-            "style=filled",
-            'fillcolor="#222222"',
-            'fontcolor="white"',
-        ]
-        if positions is not None:
-            x, y = positions[t]
-            attrs.append(f'pos="{x * 0.9:.3f},{y * 0.9:.3f}!"')
-        transition_lines.append(f"  {_dot_id(name)} [{', '.join(attrs)}];")
-    if view == "processes":
-        by_ring: dict[int, list[str]] = {}
-        for t, line in enumerate(transition_lines):
-            by_ring.setdefault(rings[t], []).append(line)
-        for ring, members in sorted(by_ring.items()):
-            colour = _PROCESS_COLOURS[ring % len(_PROCESS_COLOURS)]
-            lines.append(f"  subgraph cluster_process_{ring} {{")
-            lines.append(f"    label={_dot_id(f'process {ring}')}; color={_dot_id(colour)};")
-            lines.extend("  " + member for member in members)
-            lines.append("  }")
-    else:
-        lines.extend(transition_lines)
-    for s, name in enumerate(net.places):
-        colour = _FORWARD if net.kinds[s] == "forward" else _BACKWARD
-        marked = net.tokens[s] > 0
-        attrs = [
-            f"label={_dot_id('●' if marked else '')}",
-            "shape=circle",
-            "width=0.3",
-            "fixedsize=true",
-            f"color={_dot_id(colour)}",
-            f"xlabel={_dot_id(name)}",
-            f"tokens={net.tokens[s]}",
-        ]
-        if positions is not None:
-            a = net.coordinates[net.pre[s]]
-            step = (a[0] + 1, a[1]) if net.kinds[s] == "forward" else (a[0], a[1] + 1)
-            x, y = petri_to_page(((a[0] + step[0]) / 2, (a[1] + step[1]) / 2))
-            attrs.append(f'pos="{x * 0.9:.3f},{y * 0.9:.3f}!"')
-        lines.append(f"  {_dot_id(name)} [{', '.join(attrs)}];")
-    for s, name in enumerate(net.places):
-        colour = _dot_id(_FORWARD if net.kinds[s] == "forward" else _BACKWARD)
-        lines.append(
-            f"  {_dot_id(net.transitions[net.pre[s]])} -> {_dot_id(name)} [color={colour}];"
-        )
-        lines.append(
-            f"  {_dot_id(name)} -> {_dot_id(net.transitions[net.post[s]])} [color={colour}];"
-        )
-    lines.append("}")
-    return "\n".join(lines) + "\n"
-
-
-def states_dot(net: NetPicture, graph: StateGraph) -> str:
-    """DOT text of a reachability graph: states M0, M1, ... with their marked places."""
-    p = net.params
-    lines = [f"digraph {_dot_id(f'{p} states')} {{"]
-    lines.append(f"  label={_dot_id(f'{p}: reachability graph, {len(graph.states)} states')};")
-    lines.append('  rankdir=BT; node [shape=ellipse, fontname="Helvetica", fontsize=10];')
-    for i, marking in enumerate(graph.states):
-        marked = " ".join(net.places[s] for s in marking)
-        extra = ', style=filled, fillcolor="#f7d774"' if i == 0 else ""
-        lines.append(f"  M{i} [label={_dot_id(f'M{i}')}, tooltip={_dot_id(marked)}{extra}];")
-    for a, b, t in graph.arcs:
-        lines.append(f"  M{a} -> M{b} [label={_dot_id(net.transitions[t])}];")
-    lines.append("}")
-    return "\n".join(lines) + "\n"
