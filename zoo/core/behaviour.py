@@ -24,7 +24,7 @@ so a class with s reachable states has area at most s.
 from __future__ import annotations
 
 import hashlib
-from collections import Counter, deque
+from collections import Counter
 from collections.abc import Sequence
 from dataclasses import dataclass, fields
 
@@ -32,6 +32,7 @@ from zoo.core.canonical import CanonicalForm, canonical_form, isomorphism_from_f
 from zoo.core.net import MarkedGraph, build_net
 from zoo.core.params import ParameterSet
 from zoo.core.reachability import reachability_graph
+from zoo.core.structure import distances
 from zoo.errors import LimitExceeded
 
 #: Default bound S on the reachable states of the classes whose behaviour the catalog decides.
@@ -97,20 +98,6 @@ def cycle_order(graph: StateGraph) -> list[int] | None:
         order.append(targets[0])
 
 
-def _layers(neighbours: Sequence[Sequence[int]], start: int) -> list[int]:
-    """Breadth-first distance of every state from ``start`` (-1 where unreachable)."""
-    distance = [-1] * len(neighbours)
-    distance[start] = 0
-    queue = deque([start])
-    while queue:
-        state = queue.popleft()
-        for nxt in neighbours[state]:
-            if distance[nxt] < 0:
-                distance[nxt] = distance[state] + 1
-                queue.append(nxt)
-    return distance
-
-
 def _histogram(values: Sequence[int]) -> tuple[tuple[int, int], ...]:
     return tuple(sorted(Counter(values).items()))
 
@@ -125,8 +112,8 @@ def refined_colours(graph: StateGraph, rounds: int = REFINEMENT_ROUNDS) -> list[
     """
     successors = graph.successors
     predecessors = graph.predecessors()
-    forward = _layers(successors, 0)
-    backward = _layers(predecessors, 0)
+    forward = distances(successors, 0)
+    backward = distances(predecessors, 0)
     colours = [
         _digest((forward[i], backward[i], len(successors[i]), len(predecessors[i])))
         for i in range(graph.state_count)
@@ -181,8 +168,8 @@ def behaviour_profile(graph: StateGraph) -> BehaviourProfile:
     """The invariants of a state graph (see ``BehaviourProfile``)."""
     successors = graph.successors
     predecessors = graph.predecessors()
-    forward = _layers(successors, 0)
-    backward = _layers(predecessors, 0)
+    forward = distances(successors, 0)
+    backward = distances(predecessors, 0)
     colours = refined_colours(graph)
     return BehaviourProfile(
         states=graph.state_count,

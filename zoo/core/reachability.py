@@ -17,6 +17,7 @@ from collections.abc import Iterator
 from dataclasses import dataclass
 from typing import TYPE_CHECKING
 
+from zoo.core import structure
 from zoo.core.net import MarkedGraph
 from zoo.errors import FormatError, LimitExceeded, ParameterError
 
@@ -193,56 +194,12 @@ def is_one_safe(rg: ReachabilityGraph) -> bool:
 
 
 def strongly_connected_components(rg: ReachabilityGraph) -> list[list[int]]:
-    """The strongly connected components of the reachability graph (Tarjan, iterative).
+    """The strongly connected components of the reachability graph (zoo.core.structure).
 
     Components come out in reverse topological order: a component is listed before any
     component that has an arc into it.
     """
-    successors = rg.successors()
-    n = rg.state_count
-    index = [-1] * n
-    low = [0] * n
-    on_stack = [False] * n
-    stack: list[int] = []
-    components: list[list[int]] = []
-    counter = 0
-    for root in range(n):
-        if index[root] >= 0:
-            continue
-        work = [(root, 0)]
-        index[root] = low[root] = counter
-        counter += 1
-        stack.append(root)
-        on_stack[root] = True
-        while work:
-            v, i = work[-1]
-            if i < len(successors[v]):
-                work[-1] = (v, i + 1)
-                w = successors[v][i]
-                if index[w] < 0:
-                    index[w] = low[w] = counter
-                    counter += 1
-                    stack.append(w)
-                    on_stack[w] = True
-                    work.append((w, 0))
-                elif on_stack[w] and index[w] < low[v]:
-                    low[v] = index[w]
-                continue
-            work.pop()
-            if work:
-                parent = work[-1][0]
-                if low[v] < low[parent]:
-                    low[parent] = low[v]
-            if low[v] == index[v]:
-                component = []
-                while True:
-                    w = stack.pop()
-                    on_stack[w] = False
-                    component.append(w)
-                    if w == v:
-                        break
-                components.append(component)
-    return components
+    return structure.strongly_connected_components(rg.successors())
 
 
 def is_reversible(rg: ReachabilityGraph) -> bool:
@@ -250,19 +207,7 @@ def is_reversible(rg: ReachabilityGraph) -> bool:
 
     Equivalently the reachability graph is strongly connected (docs/theory/cycles-and-tokens.md).
     """
-    predecessors: list[list[int]] = [[] for _ in rg.codes]
-    for source, _t, target in rg.arcs:
-        predecessors[target].append(source)
-    seen = [False] * rg.state_count
-    seen[0] = True
-    frontier = [0]
-    while frontier:
-        state = frontier.pop()
-        for source in predecessors[state]:
-            if not seen[source]:
-                seen[source] = True
-                frontier.append(source)
-    return all(seen)
+    return all(structure.reachable(structure.reversed_arcs(rg.successors()), 0))
 
 
 def dead_transitions(rg: ReachabilityGraph) -> tuple[int, ...]:

@@ -35,6 +35,7 @@ from dataclasses import dataclass, field
 
 from zoo.core.net import MarkedGraph
 from zoo.core.params import ParameterSet
+from zoo.core.structure import find_cycle, first_unreached
 from zoo.interchange.netfile import read_net_file
 from zoo.interchange.netmodel import PLACE, PlaceTransitionNet
 
@@ -210,77 +211,38 @@ def _successors(graph: MarkedGraph) -> list[list[tuple[int, int]]]:
     return found
 
 
-def _reachable(adjacency: Sequence[Sequence[int]], start: int) -> list[bool]:
-    seen = [False] * len(adjacency)
-    seen[start] = True
-    stack = [start]
-    while stack:
-        u = stack.pop()
-        for v in adjacency[u]:
-            if not seen[v]:
-                seen[v] = True
-                stack.append(v)
-    return seen
-
-
 def check_connected(graph: MarkedGraph) -> None:
     """``_NotCycloid`` unless every transition can reach every other one
     (docs/theory/cycles-and-tokens.md)."""
-    forward = [[v for _, v in out] for out in _successors(graph)]
-    backward: list[list[int]] = [[] for _ in graph.transitions]
-    for u, vs in enumerate(forward):
-        for v in vs:
-            backward[v].append(u)
-    first = graph.transitions[0]
-    for adjacency, direction in ((forward, "from"), (backward, "to")):
-        seen = _reachable(adjacency, 0)
-        if not all(seen):
-            other = graph.transitions[seen.index(False)]
-            path = f"{first!r} to {other!r}" if direction == "from" else f"{other!r} to {first!r}"
-            raise _NotCycloid(
-                f"not strongly connected: there is no path from {path}; a cycloid's "
-                "transitions all lie on one strongly connected net"
-            )
+    missing = first_unreached([[v for _, v in out] for out in _successors(graph)], 0)
+    if missing is not None:
+        backwards, unreached = missing
+        first, other = graph.transitions[0], graph.transitions[unreached]
+        path = f"{other!r} to {first!r}" if backwards else f"{first!r} to {other!r}"
+        raise _NotCycloid(
+            f"not strongly connected: there is no path from {path}; a cycloid's "
+            "transitions all lie on one strongly connected net"
+        )
 
 
 def check_live(graph: MarkedGraph) -> None:
     """``_NotCycloid`` with a token-free cycle, if there is one (a marked graph is live iff none).
 
     Commoner, Holt, Even, Pnueli, "Marked directed graphs", J. Comput. Syst. Sci. 5 (1971):
-    a marked graph is live iff every cycle carries a token. Found by an iterative depth-first
-    search on the token-free places only.
+    a marked graph is live iff every cycle carries a token. Found by the depth-first search of
+    zoo.core.structure on the token-free places only.
     """
     empty: list[list[tuple[int, int]]] = [[] for _ in graph.transitions]
     for j, (u, v) in enumerate(zip(graph.pre, graph.post, strict=True)):
         if graph.tokens[j] == 0:
             empty[u].append((j, v))
-    state = [0] * graph.transition_count  # 0 new, 1 on the stack, 2 done
-    for root in range(graph.transition_count):
-        if state[root]:
-            continue
-        path: list[tuple[int, int]] = []  # (transition, place by which it was entered)
-        iterators = [iter(empty[root])]
-        state[root] = 1
-        path.append((root, -1))
-        while iterators:
-            step = next(iterators[-1], None)
-            if step is None:
-                iterators.pop()
-                done, _ = path.pop()
-                state[done] = 2
-                continue
-            place, v = step
-            if state[v] == 1:
-                start = next(k for k, (t, _) in enumerate(path) if t == v)
-                cycle = [*path[start + 1 :], (v, place)]
-                raise _NotCycloid(
-                    f"not live: the cycle {_cycle_text(graph, v, cycle)} carries no token, "
-                    "so its transitions can never fire"
-                )
-            if state[v] == 0:
-                state[v] = 1
-                path.append((v, place))
-                iterators.append(iter(empty[v]))
+    found = find_cycle(empty)
+    if found is not None:
+        start, cycle = found
+        raise _NotCycloid(
+            f"not live: the cycle {_cycle_text(graph, start, cycle)} carries no token, "
+            "so its transitions can never fire"
+        )
 
 
 def _cycle_text(graph: MarkedGraph, start: int, steps: Sequence[tuple[int, int]]) -> str:

@@ -15,13 +15,13 @@ coordinates from here, so a net looks the same in every format.
 from __future__ import annotations
 
 import math
-from collections import deque
 from collections.abc import Sequence
 from dataclasses import dataclass
 from typing import Protocol
 
 from zoo.core.algebra import lattice_key, representative
 from zoo.core.params import ParameterSet
+from zoo.core.structure import distances
 
 Point = tuple[float, float]
 
@@ -198,18 +198,10 @@ def bow(source: Point, target: Point, amount: float) -> Point:
 def state_layers(state_count: int, arcs: Sequence[tuple[int, int, int]]) -> list[int]:
     """Breadth-first distance of every state from the initial marking (state 0); -1 when a
     state is not reached from it. ``arcs`` are (from state, to state, transition)."""
-    successors: dict[int, list[int]] = {}
+    successors: list[list[int]] = [[] for _ in range(state_count)]
     for a, b, _ in arcs:
-        successors.setdefault(a, []).append(b)
-    depth = {0: 0}
-    queue = deque([0])
-    while queue:
-        a = queue.popleft()
-        for b in successors.get(a, []):
-            if b not in depth:
-                depth[b] = depth[a] + 1
-                queue.append(b)
-    return [depth.get(i, -1) for i in range(state_count)]
+        successors[a].append(b)
+    return distances(successors, 0)
 
 
 def state_positions(state_count: int, arcs: Sequence[tuple[int, int, int]]) -> list[Point]:
