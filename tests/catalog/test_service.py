@@ -6,7 +6,7 @@ import os
 import signal
 import subprocess
 import sys
-import time
+from collections.abc import Iterator
 from pathlib import Path
 from typing import Any
 
@@ -152,28 +152,41 @@ def test_running_the_same_build_again_does_nothing(
     assert dump(fresh30) == fresh30_rows
 
 
+# The child build prints each area on its own line once the area is stored (committed): the
+# test waits on those lines instead of polling the catalog.
 _BUILD_SCRIPT = (
     "import sys\n"
     "from zoo.catalog.build import build_catalog\n"
     "from zoo.catalog.service import Catalog\n"
-    "build_catalog(Catalog.open(sys.argv[1], create=True), int(sys.argv[2]), jobs=1)\n"
+    "class Stored:\n"
+    "    def started(self, areas, parameter_sets): pass\n"
+    "    def area_done(self, stats): print(stats.area, flush=True)\n"
+    "    def finished(self, report): pass\n"
+    "build_catalog(Catalog.open(sys.argv[1], create=True), int(sys.argv[2]), jobs=1, "
+    "progress=Stored())\n"
 )
 
 
 def _start_build(location: str, max_area: int) -> subprocess.Popen[bytes]:
     return subprocess.Popen(
         [sys.executable, "-c", _BUILD_SCRIPT, location, str(max_area)],
-        stdout=subprocess.DEVNULL,
+        stdout=subprocess.PIPE,
         stderr=subprocess.PIPE,
+        bufsize=0,  # unbuffered: a line read is never held back from the select below
     )
 
 
-def _complete_to_or_none(location: str) -> int | None:
-    try:
-        with Catalog.open(location) as catalog:
-            return catalog.complete_to()
-    except CatalogError:
-        return None  # the schema is not there yet
+def _stored_areas(process: subprocess.Popen[bytes], timeout: float = 120) -> Iterator[int]:
+    """The areas the child build reports as stored, as it reports them; ends when the child
+    closes its output, or after ``timeout`` seconds without a line."""
+    from select import select as wait_readable  # sqlalchemy's select is imported above
+
+    assert process.stdout is not None
+    while wait_readable([process.stdout], [], [], timeout)[0]:
+        line = process.stdout.readline()
+        if not line:
+            return
+        yield int(line)
 
 
 def test_killed_build_leaves_a_consistent_catalog_and_resumes(
@@ -181,13 +194,10 @@ def test_killed_build_leaves_a_consistent_catalog_and_resumes(
 ) -> None:
     location = str(tmp_path / "killed.sqlite3")
     process = _start_build(location, 60)
-    deadline = time.monotonic() + 120
     reached = None
-    while time.monotonic() < deadline:
-        reached = _complete_to_or_none(location)
-        if reached is not None and reached >= 15:
+    for reached in _stored_areas(process):
+        if reached >= 15:
             break
-        time.sleep(0.02)
     os.kill(process.pid, signal.SIGKILL)
     process.wait()
     assert reached is not None and 15 <= reached < 60
@@ -210,13 +220,8 @@ def test_reader_queries_while_a_build_writes(tmp_path: Path, fresh30: str) -> No
     process = _start_build(location, 24)
     seen: set[int] = set()
     try:
-        while process.poll() is None:
-            try:
-                catalog = Catalog.open(location)
-            except CatalogError:
-                time.sleep(0.01)
-                continue
-            with catalog:
+        for _stored in _stored_areas(process):  # read after each area the writer commits
+            with Catalog.open(location) as catalog:
                 bound = catalog.complete_to()
                 if 1 <= bound <= 24:
                     counted = catalog.count(f"area <= {bound}")
@@ -224,7 +229,6 @@ def test_reader_queries_while_a_build_writes(tmp_path: Path, fresh30: str) -> No
                     found = catalog.find(f"area = {bound}")
                     assert len(found.entries) == classes_per_area[bound]
                     seen.add(bound)
-            time.sleep(0.05)
     finally:
         process.wait(timeout=120)
     assert process.returncode == 0, process.stderr.read() if process.stderr else ""

@@ -5,7 +5,9 @@ from __future__ import annotations
 import csv
 import io
 import json
+import os
 from pathlib import Path
+from typing import Any
 
 import pytest
 from typer.testing import CliRunner
@@ -249,34 +251,73 @@ def test_every_command_has_help(command: str) -> None:
     assert result.exit_code == 0 and "Example:" in result.stdout
 
 
+#: Prepended to a child's script: after each area the build stores (and commits), the child
+#: writes the area on a line to the file descriptor in ZOO_TEST_AREAS_FD, so that a test waits
+#: on that line instead of polling the catalog. The command under test runs unchanged.
+_REPORT_STORED_AREAS = (
+    "import os\n"
+    "import zoo.catalog.build as _build\n"
+    "_stored = os.fdopen(int(os.environ['ZOO_TEST_AREAS_FD']), 'w', buffering=1)\n"
+    "_write_area = _build.write_area\n"
+    "def _reporting_write_area(catalog, result, seeds):\n"
+    "    wrote = _write_area(catalog, result, seeds)\n"
+    "    _stored.write(f'{result.area}\\n')\n"
+    "    return wrote\n"
+    "_build.write_area = _reporting_write_area\n"
+)
+
+
+def _start_reporting(command: list[str], **options: Any) -> tuple[Any, int]:
+    """Start a child whose script begins with _REPORT_STORED_AREAS; returns it and the read end
+    of its report pipe."""
+    import subprocess
+
+    read_end, write_end = os.pipe()
+    env = {**options.pop("env", os.environ), "ZOO_TEST_AREAS_FD": str(write_end)}
+    try:
+        child = subprocess.Popen(command, env=env, pass_fds=(write_end,), **options)
+    finally:
+        os.close(write_end)  # the child holds the only write end: its exit closes the pipe
+    return child, read_end
+
+
+def _wait_for_area(read_end: int, area: int, timeout: float = 120) -> int:
+    """Block until the child reports an area >= ``area`` (or closes the pipe, or ``timeout``
+    seconds pass without a report); the last area reported, 0 for none."""
+    import select
+
+    reached, pending = 0, b""
+    while reached < area and select.select([read_end], [], [], timeout)[0]:
+        chunk = os.read(read_end, 4096)
+        if not chunk:
+            break
+        pending += chunk
+        *lines, pending = pending.split(b"\n")
+        reached = max([reached, *(int(line) for line in lines if line)])
+    return reached
+
+
 def test_ctrl_c_keeps_complete_areas_and_the_next_build_resumes(tmp_path: Path) -> None:
     import signal
     import subprocess
     import sys
-    import time
 
     location = str(tmp_path / "interrupted.sqlite3")
     # The Typer app in standalone mode, as a console script runs it.
-    script = "import sys; from zoo.cli import app; sys.argv[0] = 'zoo'; app()"
-    process = subprocess.Popen(
+    script = (
+        _REPORT_STORED_AREAS + "import sys; from zoo.cli import app; sys.argv[0] = 'zoo'; app()"
+    )
+    process, stored = _start_reporting(
         [sys.executable, "-c", script, "build", "-n", "60", "--db", location, "--jobs", "2"],
         stdout=subprocess.PIPE,
         stderr=subprocess.PIPE,
     )
     from zoo.catalog.service import Catalog
-    from zoo.errors import CatalogError
 
-    deadline = time.monotonic() + 120
-    while time.monotonic() < deadline:
-        try:
-            with Catalog.open(location) as catalog:
-                if catalog.complete_to() >= 6:
-                    break
-        except CatalogError:
-            pass
-        time.sleep(0.05)
+    _wait_for_area(stored, 6)
     process.send_signal(signal.SIGINT)
     _, err = process.communicate(timeout=60)
+    os.close(stored)  # only now: a child writing to a closed pipe would fail
     assert process.returncode == 130
     assert "Every area stored so far is complete and kept" in err.decode()
     with Catalog.open(location) as catalog:
@@ -346,33 +387,26 @@ _FIND_WITH_SMALL_DEFAULT = (
 def test_interrupted_default_build_resumes_on_the_next_find(tmp_path: Path) -> None:
     """Ctrl-C (a real SIGINT) during the first `zoo find`, then `zoo find` again: it finishes
     the default build before answering."""
-    import os
     import signal
     import subprocess
     import sys
-    import time
 
     from zoo.catalog.service import Catalog
 
     location = tmp_path / "main-job.sqlite3"
     env = {**os.environ, "ZOO_CATALOG": str(location)}
     command = [sys.executable, "-c", _FIND_WITH_SMALL_DEFAULT]
-    first = subprocess.Popen(
-        command, env=env, stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True
+    first, stored = _start_reporting(
+        [sys.executable, "-c", _REPORT_STORED_AREAS + _FIND_WITH_SMALL_DEFAULT],
+        env=env,
+        stdout=subprocess.PIPE,
+        stderr=subprocess.PIPE,
+        text=True,
     )
-    deadline = time.monotonic() + 120
-    reached = 0
-    while time.monotonic() < deadline and first.poll() is None:
-        try:
-            with Catalog.open(str(location)) as catalog:
-                reached = catalog.complete_to()
-        except Exception:  # not created yet
-            reached = 0
-        if reached >= 12:
-            break
-        time.sleep(0.05)
+    _wait_for_area(stored, 12)
     first.send_signal(signal.SIGINT)
     _out, err = first.communicate(timeout=60)
+    os.close(stored)  # only now: a child writing to a closed pipe would fail
     assert first.returncode == 130, err
     with Catalog.open(str(location)) as catalog:
         stopped = catalog.complete_to()

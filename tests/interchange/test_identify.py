@@ -12,7 +12,6 @@ from __future__ import annotations
 
 import json
 import random
-import time
 import xml.etree.ElementTree as ET
 from collections import deque
 from pathlib import Path
@@ -163,7 +162,7 @@ def test_every_class_up_to_area_30_survives_export_renaming_and_shuffling() -> N
     rng = random.Random(20261201)
     representatives = class_representatives(MAX_AREA)
     assert len(representatives) > 1000  # a sanity floor: 1,261 classes for area <= 30
-    started = time.perf_counter()
+    # How long the round trip takes: benchmarks/bench_identify.py prints the figures.
     for key, p in representatives.items():
         document = scrambled(pnml_document(build_net(p)), rng)
         foreign = parse_pnml(document, str(p))
@@ -173,7 +172,6 @@ def test_every_class_up_to_area_30_survives_export_renaming_and_shuffling() -> N
         assert class_key(answer.params) == key, (p, answer.params)
         assert any(class_key(q) == key for q in answer.synthesized)  # found by synthesis
         assert_mapping_is_isomorphism(foreign, answer)
-    assert time.perf_counter() - started < 60
 
 
 def test_label_is_the_smallest_member_of_the_class() -> None:

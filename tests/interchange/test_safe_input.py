@@ -1,12 +1,12 @@
-"""Safe input (docs/pnml.md, "Safe input"): hostile and broken files get one clear line, fast.
+"""Safe input (docs/pnml.md, "Safe input"): hostile and broken files get one clear line.
 
 Each file in tests/data/pnml is hand-written; the huge and deeply nested files are made on the
-fly. Every case pins the exact message and checks that it comes back quickly.
+fly. Every case pins the exact message; how fast each answer comes back (milliseconds) is
+measured by benchmarks/bench_safe_input.py, not asserted here.
 """
 
 from __future__ import annotations
 
-import time
 from pathlib import Path
 
 import pytest
@@ -20,14 +20,11 @@ from zoo.interchange.netmodel import MAX_INPUT_BYTES, read_limited
 from zoo.interchange.pnml import PNML_NAMESPACE, PTNET_TYPE, parse_pnml
 
 DATA = Path(__file__).parents[1] / "data" / "pnml"
-QUICK = 2.0  # seconds; every refusal below takes milliseconds on an idle machine
 
 
 def refusal(path: Path) -> str:
-    started = time.perf_counter()
     with pytest.raises(FormatError) as caught:
         read_net_file(path)
-    assert time.perf_counter() - started < QUICK
     message = str(caught.value)
     assert "\n" not in message
     return message
@@ -78,9 +75,7 @@ def test_external_dtd_is_never_fetched() -> None:
         f'"{PNML_NAMESPACE}"><net id="n" type="{PTNET_TYPE}"><page id="p">'
         '<transition id="t"/></page></net></pnml>'
     ).encode()
-    started = time.perf_counter()
     assert parse_pnml(document, "x").transitions == ("t",)
-    assert time.perf_counter() - started < QUICK
 
 
 def test_oversized_file_is_refused_before_parsing(tmp_path: Path) -> None:
@@ -124,10 +119,8 @@ def test_deeply_nested_pages_are_read_without_recursion() -> None:
         + "</page>" * depth
         + "</net></pnml>"
     ).encode()
-    started = time.perf_counter()
     net = parse_pnml(document, "deep")
     assert net.pages == depth and net.transitions == ("t",)
-    assert time.perf_counter() - started < 5 * QUICK
 
 
 @pytest.mark.parametrize(
@@ -151,9 +144,7 @@ def test_deeply_nested_pages_are_read_without_recursion() -> None:
     ],
 )
 def test_nets_that_are_not_cycloids_get_their_reason(name: str, reason: str) -> None:
-    started = time.perf_counter()
     answer = identify_file(DATA / name, use_catalog=False)
-    assert time.perf_counter() - started < QUICK
     assert answer.cycloid is False and answer.params is None
     assert answer.reason == reason
 
