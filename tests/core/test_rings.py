@@ -218,3 +218,10 @@ def test_cli_ring_error_is_one_line() -> None:
     assert result.exit_code == 1
     assert result.stderr.startswith("Error: a ring needs at least one of its items")
     assert len(result.stderr.strip().splitlines()) == 1
+
+
+def test_describe_ring_with_simulation_is_the_simulation_report() -> None:
+    design = RingDesign(2, 2, True, True)
+    report = describe_ring(design, None, simulate_states=1000)
+    assert report["simulation"] == simulation_report(design, 1000)
+    assert "simulation" not in describe_ring(design, None)

@@ -127,19 +127,15 @@ def explore(
     refuse_unknown_options("explore", ref)
     try:
         p = resolve_params(" ".join(ref), db)
-        from zoo.core.report import exploration_report
+        from zoo.core.report import exploration_disagreement, exploration_report
 
         report = exploration_report(p, state_limit)
     except ZooError as exc:
         raise fail(exc) from None
     _print_report(report, fmt, _print_explore_table)
-    if not (report["states_agree"] and report["arcs_agree"]):
-        raise fail(
-            f"the explicit search of {p} disagrees with the closed formulas (states "
-            f"{report['states']:,} vs {report['formula_states']:,}, arcs {report['arcs']:,} vs "
-            f"{report['formula_arcs']:,}); this is a bug in zoo, please report it with this "
-            "command line"
-        )
+    alarm = exploration_disagreement(report)
+    if alarm:
+        raise fail(alarm)
 
 
 def _print_report(

@@ -1,8 +1,8 @@
 """Commands of zoo: ``export`` (a cycloid's net as PNML, DOT, SVG, JSON or net text) and
 ``identify`` (is a net in a file a cycloid system, and which one).
 
-A thin layer: the documents come from ``zoo.interchange.netfile``, pictures from
-``zoo.pictures.views`` and the answers from ``zoo.interchange.identify``; this module parses
+A thin layer: the documents come from ``zoo.interchange.export`` and the answers from
+``zoo.interchange.identify``; this module parses
 arguments, resolves references through the catalog service and writes files.
 """
 
@@ -60,33 +60,10 @@ class AnswerFormat(StrEnum):
 
 
 def export_document(p: ParameterSet, fmt: ExportFormat) -> str:
-    """The net of C(p) as text in the chosen format."""
-    if fmt is ExportFormat.svg:
-        try:
-            from zoo.pictures.views import draw_net_svg
-        except ImportError:  # pragma: no cover - zoo.pictures.views ships with zoo
-            raise FormatError(
-                "SVG export needs zoo.pictures.views, which is not installed"
-            ) from None
-        return draw_net_svg(p)
-    from zoo.core.net import build_net
+    """The net of C(p) as text in the chosen format (zoo.interchange.export)."""
+    from zoo.interchange.export import export_document as document_of
 
-    net = build_net(p)
-    if fmt is ExportFormat.pnml:
-        from zoo.interchange.pnml import pnml_document
-
-        return pnml_document(net)
-    if fmt is ExportFormat.dot:
-        from zoo.interchange.dot import dot_document
-
-        return dot_document(net)
-    if fmt is ExportFormat.json:
-        from zoo.interchange.netjson import json_document
-
-        return json_document(net)
-    from zoo.interchange.nettext import net_text
-
-    return net_text(net)
+    return document_of(p, fmt.value)
 
 
 def _export_format(fmt: ExportFormat | None, output: Path | None) -> ExportFormat:

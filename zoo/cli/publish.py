@@ -211,10 +211,7 @@ def release(
 
 def _write_release(output: Path, db: str | None) -> Any:
     from zoo.catalog.service import Catalog
-    from zoo.publish.cite import catalog_version
-    from zoo.publish.release import catalog_areas, iter_catalog_entries, make_release
+    from zoo.publish.release import release_catalog
 
     with Catalog.open(db) as catalog:
-        version = catalog_version(catalog)
-        areas = catalog_areas(catalog)  # fixed up front: both dumps hold the same classes
-        return make_release(lambda: iter_catalog_entries(catalog, areas), version, output)
+        return release_catalog(catalog, output)

@@ -64,13 +64,13 @@ def ring(
 
     Example: zoo ring --items 2 --slots 3 --individual-items
     """
-    from zoo.core.rings import RingDesign, describe_ring, simulation_report
+    from zoo.core.rings import RingDesign, describe_ring
 
     try:
         design = RingDesign(items, slots, individual_items, individual_slots)
-        report: dict[str, Any] = describe_ring(design, class_id_of(design.params, db))
-        if simulate:
-            report["simulation"] = simulation_report(design, state_limit)
+        report = describe_ring(
+            design, class_id_of(design.params, db), state_limit if simulate else None
+        )
     except ZooError as exc:
         raise fail(exc) from None
     if fmt is TableOrJson.json:

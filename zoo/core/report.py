@@ -338,3 +338,16 @@ def exploration_report(p: ParameterSet, state_limit: int = DEFAULT_STATE_LIMIT) 
         **facts,
         "seconds": round(seconds, 6),
     }
+
+
+def exploration_disagreement(report: dict[str, Any]) -> str:
+    """The one-line alarm for an exploration report whose explicit counts differ from the
+    closed formulas (empty when they agree)."""
+    if report["states_agree"] and report["arcs_agree"]:
+        return ""
+    return (
+        f"the explicit search of {report['label']} disagrees with the closed formulas (states "
+        f"{report['states']:,} vs {report['formula_states']:,}, arcs {report['arcs']:,} vs "
+        f"{report['formula_arcs']:,}); this is a bug in zoo, please report it with this "
+        "command line"
+    )

@@ -196,9 +196,12 @@ def format_ring_state(state: RingState) -> str:
     return " ".join(parts)
 
 
-def describe_ring(design: RingDesign, class_id: str | None) -> dict[str, Any]:
+def describe_ring(
+    design: RingDesign, class_id: str | None, simulate_states: int | None = None
+) -> dict[str, Any]:
     """Everything ``zoo ring`` prints, as a plain JSON-ready dict (the catalog lookup is the
-    caller's, so that nothing here touches storage).
+    caller's, so that nothing here touches storage); with ``simulate_states``, also the
+    ``simulation`` of ``simulation_report`` up to that many states.
 
     ``states`` is the closed formula of docs/theory/state-counts.md; ``area`` is also the length of
     the
@@ -209,7 +212,7 @@ def describe_ring(design: RingDesign, class_id: str | None) -> dict[str, Any]:
     p = design.params
     invariants = invariant_report(p)
     invariants["id"] = class_id
-    return {
+    report: dict[str, Any] = {
         "items": design.items,
         "slots": design.slots,
         "cells": design.cells,
@@ -222,6 +225,9 @@ def describe_ring(design: RingDesign, class_id: str | None) -> dict[str, Any]:
         "class_id": class_id,
         "invariants": invariants,
     }
+    if simulate_states is not None:
+        report["simulation"] = simulation_report(design, simulate_states)
+    return report
 
 
 def cycloid_state_graph(design: RingDesign, max_states: int = SIMULATION_LIMIT) -> nx.MultiDiGraph:

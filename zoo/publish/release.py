@@ -374,6 +374,19 @@ class VerifyReport:
         return not self.problems
 
 
+def release_catalog(catalog: Any, folder: Path) -> ReleaseSummary:
+    """Write a release of an open zoo.catalog.service.Catalog (``zoo release --output``).
+
+    The areas are fixed up front, so that both dumps hold the same classes even while a build
+    adds areas; the version is the catalog's (zoo.publish.cite.catalog_version).
+    """
+    from zoo.publish.cite import catalog_version
+
+    version = catalog_version(catalog)
+    areas = catalog_areas(catalog)
+    return make_release(lambda: iter_catalog_entries(catalog, areas), version, folder)
+
+
 def read_manifest(folder: Path) -> dict[str, Any]:
     """The manifest of a release folder, checked for kind, version and shape."""
     path = Path(folder) / MANIFEST_NAME
