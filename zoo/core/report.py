@@ -156,6 +156,7 @@ def invariant_report(p: ParameterSet, *, explicit: bool = True) -> Report:
         "cycle_time": fraction_text(cycle_time),
         "cycle_time_float": float(cycle_time),
         "group": list(algebra.transition_group(p)),
+        "cyclic": algebra.transition_group(p)[0] == 1,
         "lattice_key": [key.area, key.g, key.r],
         "swap": str(p.swap()),
         "normal_form_beta_delta": str(algebra.normal_form_beta_delta(p)),

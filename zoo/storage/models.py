@@ -14,7 +14,7 @@ from __future__ import annotations
 
 from collections.abc import Callable
 from datetime import datetime
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 from sqlalchemy import (
     Boolean,
@@ -29,6 +29,8 @@ from sqlalchemy import (
 )
 from sqlalchemy.engine.default import DefaultExecutionContext
 from sqlalchemy.orm import DeclarativeBase, Mapped, mapped_column, relationship
+
+from zoo.core import registry
 
 
 def sortable_key(n: int) -> str:
@@ -69,6 +71,59 @@ def _key_of(column: str) -> Callable[[DefaultExecutionContext], str]:
 def _cyclic_default(context: DefaultExecutionContext) -> bool:
     # The transition group Z_d1 x Z_(A/d1) is cyclic iff d1 = 1 (docs/theory/lattice-key.md).
     return int(_current_parameters(context)["group_d1"]) == 1
+
+
+#: Insert defaults of stored values that follow from other columns of the same row.
+_DERIVED_DEFAULTS: dict[str, Callable[[DefaultExecutionContext], Any]] = {
+    "cyclic": _cyclic_default,
+}
+
+
+def invariant_columns(table: str) -> dict[str, Any]:
+    """The mapped columns of every registry invariant stored on ``table``, in registry order.
+
+    Exact integers are decimal text beside a sortable key filled on insert; fractions are a
+    numerator and a denominator; an indexed invariant is indexed on the column it sorts by.
+    """
+    columns: dict[str, Any] = {}
+    for inv in registry.stored_on(table):
+        names = inv.columns
+        if inv.type is registry.ValueType.BIG_INTEGER:
+            columns[names[0]] = mapped_column(Text, nullable=False)
+            columns[names[1]] = mapped_column(
+                Text, nullable=False, index=inv.indexed or None, default=_key_of(names[0])
+            )
+        elif inv.type is registry.ValueType.FRACTION:
+            columns[names[0]] = mapped_column(Integer, nullable=False)
+            columns[names[1]] = mapped_column(Integer, nullable=False)
+        elif inv.type is registry.ValueType.BOOLEAN:
+            columns[names[0]] = mapped_column(
+                Boolean, nullable=False, default=_DERIVED_DEFAULTS.get(names[0])
+            )
+        elif inv.type is registry.ValueType.TEXT:
+            columns[names[0]] = mapped_column(Text, nullable=False)
+        else:
+            columns[names[0]] = mapped_column(Integer, nullable=False, index=inv.indexed or None)
+    return columns
+
+
+def _invariant_mixin(name: str, table: str) -> type:
+    """A declarative mixin holding the registry's columns of one table."""
+    return type(name, (), invariant_columns(table))
+
+
+if TYPE_CHECKING:  # the type checker sees plain bases; the columns are made at import
+
+    class ClassInvariantColumns: ...
+
+    class ReadingInvariantColumns: ...
+
+    class FrameInvariantColumns: ...
+
+else:
+    ClassInvariantColumns = _invariant_mixin("ClassInvariantColumns", "classes")
+    ReadingInvariantColumns = _invariant_mixin("ReadingInvariantColumns", "readings")
+    FrameInvariantColumns = _invariant_mixin("FrameInvariantColumns", "frames")
 
 
 #: Constraint and index names, fixed from the first revision on so that every later migration
@@ -121,7 +176,7 @@ class AreaRecord(Base):
     __table_args__ = (CheckConstraint("area >= 1", name="area_positive"),)
 
 
-class FrameRecord(Base):
+class FrameRecord(FrameInvariantColumns, Base):
     """A frame: an isomorphism class of unmarked nets (docs/theory/isomorphism.md),
     ``FR{area}-{rank}``."""
 
@@ -132,8 +187,8 @@ class FrameRecord(Base):
     rank: Mapped[int] = mapped_column(Integer)
     label: Mapped[str] = mapped_column(Text)
     fingerprint: Mapped[str] = mapped_column(Text, unique=True)
-    automorphisms: Mapped[str] = mapped_column(Text)  # exact order as decimal text
-    automorphisms_key: Mapped[str] = mapped_column(Text, default=_key_of("automorphisms"))
+    # automorphisms (exact decimal text) and its sortable key come from the registry of
+    # invariants (net_automorphisms) through FrameInvariantColumns.
     lattice_g: Mapped[int] = mapped_column(Integer)
     lattice_r: Mapped[int] = mapped_column(Integer)
 
@@ -144,7 +199,7 @@ class FrameRecord(Base):
     __table_args__ = (UniqueConstraint("area", "rank"),)
 
 
-class ClassRecord(Base):
+class ClassRecord(ClassInvariantColumns, Base):
     """A catalog entry: an isomorphism class of marked nets, places not typed, ``CY{area}-{rank}``.
 
     Holds the class-level invariants (the same for every reading, docs/theory/isomorphism.md).
@@ -162,26 +217,8 @@ class ClassRecord(Base):
     label_delta: Mapped[int] = mapped_column(Integer)
     frame_id: Mapped[str] = mapped_column(ForeignKey("frames.id"), index=True)
     fingerprint: Mapped[str] = mapped_column(Text, unique=True)
-    # minimal cycle length, docs/theory/minimal-cycle-length.md
-    loop: Mapped[int] = mapped_column(Integer, index=True)
-    states: Mapped[str] = mapped_column(Text)  # reachable markings, exact decimal text
-    states_key: Mapped[str] = mapped_column(Text, index=True, default=_key_of("states"))
-    state_arcs: Mapped[str] = mapped_column(Text)
-    state_arcs_key: Mapped[str] = mapped_column(Text, default=_key_of("state_arcs"))
-    automorphisms: Mapped[str] = mapped_column(Text)  # exact order as decimal text
-    automorphisms_key: Mapped[str] = mapped_column(
-        Text, index=True, default=_key_of("automorphisms")
-    )
-    tokens: Mapped[int] = mapped_column(Integer)  # alpha + beta
-    enabled: Mapped[int] = mapped_column(Integer)
-    semi_enabled: Mapped[int] = mapped_column(Integer)
-    cycle_time_num: Mapped[int] = mapped_column(Integer)
-    cycle_time_den: Mapped[int] = mapped_column(Integer)
-    group_d1: Mapped[int] = mapped_column(Integer)  # transition group Z_d1 x Z_(A/d1)
-    cyclic: Mapped[bool] = mapped_column(Boolean, default=_cyclic_default)  # group_d1 == 1
-    iteration: Mapped[int] = mapped_column(Integer)  # iteration depth, docs/theory/iterations.md
-    reading_count: Mapped[int] = mapped_column(Integer)
-    member_count: Mapped[int] = mapped_column(Integer)
+    # The invariant columns (loop, states, ..., member_count) come from the registry of
+    # invariants through ClassInvariantColumns.
 
     frame: Mapped[FrameRecord] = relationship(back_populates="classes")
     readings: Mapped[list[ReadingRecord]] = relationship(
@@ -197,7 +234,7 @@ class ClassRecord(Base):
     __table_args__ = (UniqueConstraint("area", "rank"),)
 
 
-class ReadingRecord(Base):
+class ReadingRecord(ReadingInvariantColumns, Base):
     """A reading: same lattice and same (alpha, beta), places typed (docs/theory/isomorphism.md).
 
     A class has one or two readings; reading-level properties depend on which place kind is
@@ -213,18 +250,8 @@ class ReadingRecord(Base):
     beta: Mapped[int] = mapped_column(Integer)
     lattice_g: Mapped[int] = mapped_column(Integer)
     lattice_r: Mapped[int] = mapped_column(Integer)
-    processes: Mapped[int] = mapped_column(Integer)
-    regular: Mapped[bool] = mapped_column(Boolean)
-    slowness_num: Mapped[int] = mapped_column(Integer)
-    slowness_den: Mapped[int] = mapped_column(Integer)
-    forward_count: Mapped[int] = mapped_column(Integer)
-    forward_length: Mapped[int] = mapped_column(Integer)
-    forward_tokens: Mapped[int] = mapped_column(Integer)
-    backward_count: Mapped[int] = mapped_column(Integer)
-    backward_length: Mapped[int] = mapped_column(Integer)
-    backward_tokens: Mapped[int] = mapped_column(Integer)
-    nf_beta_delta: Mapped[str] = mapped_column(Text)  # C(a,b,c,d), docs/theory/normal-forms.md
-    nf_alpha_gamma: Mapped[str] = mapped_column(Text)
+    # The invariant columns (processes, ..., normal forms) come from the registry of invariants
+    # through ReadingInvariantColumns.
 
     class_record: Mapped[ClassRecord] = relationship(back_populates="readings")
     members: Mapped[list[ParameterSetRecord]] = relationship(
