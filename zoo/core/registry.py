@@ -46,7 +46,7 @@ class ValueType(Enum):
     BIG_INTEGER = "exact integer"  # any size: decimal text beside a sortable key; a JSON integer
     FRACTION = "fraction"  # numerator and denominator columns; JSON "num/den" plus <key>_float
     BOOLEAN = "yes/no"
-    TEXT = "text"  # a parameter-set label C(a,b,c,d)
+    TEXT = "text"  # a parameter-set label C(a,b,c,d), computed as a ParameterSet
 
 
 #: The table that holds each level's stored values (docs/architecture.md, "Schema").
@@ -62,7 +62,7 @@ LEVEL_TABLES: dict[Level, str] = {
 #: class is an n-fold iteration, or has a non-cyclic group, when one of its readings is.
 FIRST, LARGEST, EVERY = "label", "largest over the readings", "true of every reading"
 
-Value = int | bool | Fraction | str
+Value = int | bool | Fraction | ParameterSet
 
 
 @dataclass(frozen=True)
@@ -121,6 +121,12 @@ class Invariant:
         if self.type is ValueType.FRACTION:
             return (f"{self.column}_num", f"{self.column}_den")
         return (self.column,)
+
+    def of_params(self, p: ParameterSet) -> Value:
+        """The value of one parameter set (of its reading, for a reading-level invariant)."""
+        if self.compute is None:
+            raise ValueError(f"{self.name} is not a formula of the parameters")
+        return self.compute(p)
 
     def of_class(self, readings: tuple[ParameterSet, ...]) -> Value:
         """The class value from the labels of its readings (the first is the class label)."""
@@ -248,10 +254,10 @@ INVARIANTS: tuple[Invariant, ...] = (
               "backward_tokens > 1", json_key="backward_cycles.tokens"),
     Invariant("normal_form_beta_delta", _R, _TEXT, "NF_bd", "",
               "normal form by β- and δ-steps", "docs/theory/normal-forms.md",
-              lambda p: str(algebra.normal_form_beta_delta(p)), "nf_beta_delta", query=False),
+              algebra.normal_form_beta_delta, "nf_beta_delta", query=False),
     Invariant("normal_form_alpha_gamma", _R, _TEXT, "NF_ag", "",
               "normal form by α- and γ-steps", "docs/theory/normal-forms.md",
-              lambda p: str(algebra.normal_form_alpha_gamma(p)), "nf_alpha_gamma", query=False),
+              algebra.normal_form_alpha_gamma, "nf_alpha_gamma", query=False),
     Invariant("gamma", _P, _INT, "γ", "transitions",
               "the third parameter γ (forward offset)", "docs/theory/folding.md",
               lambda p: p.gamma, "gamma", "gamma = 1", aliases=("γ",), structural=True),
@@ -275,7 +281,13 @@ def of_level(level: Level) -> tuple[Invariant, ...]:
 
 def stored_on(table: str) -> tuple[Invariant, ...]:
     """The invariants whose columns the registry adds to ``table`` (not the structural keys)."""
-    return tuple(inv for inv in INVARIANTS if inv.table == table and not inv.structural)
+    return _STORED_ON.get(table, ())
+
+
+_STORED_ON: dict[str, tuple[Invariant, ...]] = {
+    table: tuple(inv for inv in INVARIANTS if inv.table == table and not inv.structural)
+    for table in LEVEL_TABLES.values()
+}
 
 
 def json_value(inv: Invariant, value: Value, area: int) -> object:
@@ -289,6 +301,8 @@ def json_value(inv: Invariant, value: Value, area: int) -> object:
         return [value, area // value]
     if isinstance(value, Fraction):
         return f"{value.numerator}/{value.denominator}"
+    if isinstance(value, ParameterSet):
+        return str(value)
     return value
 
 

@@ -23,7 +23,7 @@ from dataclasses import dataclass
 from fractions import Fraction
 from typing import Any
 
-from zoo.core import algebra, invariants
+from zoo.core import algebra, invariants, registry
 from zoo.core.params import ParameterSet
 from zoo.core.reachability import DEFAULT_STATE_LIMIT
 from zoo.errors import LimitExceeded
@@ -170,6 +170,15 @@ def invariant_report(p: ParameterSet, *, explicit: bool = True) -> Report:
         "net_fingerprint": forms.net_fingerprint if forms else None,
         "notes": notes,
     }
+    # Every other formula of the registry, so that a new invariant reaches zoo show by its
+    # registry entry alone (the keys above keep their published order; notes stay last).
+    for inv in registry.INVARIANTS:
+        top = inv.key.partition(".")[0]
+        if inv.compute is None or inv.structural or top in report:
+            continue
+        if inv.level in (registry.Level.CLASS, registry.Level.READING, registry.Level.FRAME):
+            report[inv.key] = registry.json_value(inv, inv.compute(p), p.area)
+    report["notes"] = report.pop("notes")
     return report
 
 

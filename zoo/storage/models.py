@@ -12,8 +12,9 @@ ordering keys as text is numeric order on SQLite and PostgreSQL alike.
 
 from __future__ import annotations
 
-from collections.abc import Callable
+from collections.abc import Callable, Mapping
 from datetime import datetime
+from fractions import Fraction
 from typing import TYPE_CHECKING, Any
 
 from sqlalchemy import (
@@ -105,6 +106,41 @@ def invariant_columns(table: str) -> dict[str, Any]:
         else:
             columns[names[0]] = mapped_column(Integer, nullable=False, index=inv.indexed or None)
     return columns
+
+
+def stored_values(inv: registry.Invariant, value: object) -> dict[str, object]:
+    """The column values that store one invariant's value (the one converter of values to
+    rows): exact integers as decimal text beside their sortable key, fractions as numerator
+    and denominator.
+
+    >>> from fractions import Fraction
+    >>> stored_values(registry.invariant("states"), 40)
+    {'states': '40', 'states_key': '000240'}
+    >>> stored_values(registry.invariant("slowness"), Fraction(-1, 3))
+    {'slowness_num': -1, 'slowness_den': 3}
+    """
+    names = inv.columns
+    if inv.type is registry.ValueType.BIG_INTEGER:
+        number = value if isinstance(value, int) else int(str(value))
+        return {names[0]: str(number), names[1]: sortable_key(number)}
+    if inv.type is registry.ValueType.FRACTION:
+        fraction = value if isinstance(value, Fraction) else Fraction(str(value))
+        return {names[0]: fraction.numerator, names[1]: fraction.denominator}
+    if inv.type is registry.ValueType.BOOLEAN:
+        return {names[0]: bool(value)}
+    if inv.type is registry.ValueType.TEXT:
+        return {names[0]: str(value)}
+    return {names[0]: value if isinstance(value, int) else int(str(value))}
+
+
+def stored_row(table: str, values: Mapping[str, object]) -> dict[str, object]:
+    """The columns of every registry invariant stored on ``table``, from values by name."""
+    row: dict[str, object] = {}
+    for inv in registry.stored_on(table):
+        if inv.name not in values:
+            raise KeyError(f"no value of {inv.name} for a row of {table}")
+        row.update(stored_values(inv, values[inv.name]))
+    return row
 
 
 def _invariant_mixin(name: str, table: str) -> type:
