@@ -188,3 +188,11 @@ def test_value_types_match_the_stored_columns() -> None:
     for inv in INVARIANTS:
         expected = {ValueType.BIG_INTEGER: 2, ValueType.FRACTION: 2}.get(inv.type, 1)
         assert len(inv.columns) == expected, inv.name
+
+
+def test_one_vocabulary_lists_and_counts() -> None:
+    # issue 8: `members` and `readings` are always the lists; their numbers are *_count.
+    keys = {inv.key for inv in INVARIANTS} | {inv.name for inv in INVARIANTS}
+    assert not keys & {"members", "readings"}
+    assert registry.invariant("member_count").aliases == ("members",)
+    assert registry.invariant("reading_count").aliases == ("readings",)

@@ -340,10 +340,9 @@ def _requested_columns(columns: Sequence[str] | None) -> list[str]:
 
 
 def _members_text(entry: ClassEntry, short: bool) -> str:
-    """All members separated by spaces (csv), or their number (table: the list can be long)."""
-    if short:
-        return str(len(entry.members))
-    return " ".join(str(p) for p in entry.members)
+    """The member labels: ", "-separated in the table, space-separated in csv. ``members`` is
+    always this list (one vocabulary, docs/catalog.md); its number is ``member_count``."""
+    return (", " if short else " ").join(str(p) for p in entry.members)
 
 
 def _default_value(entry: ClassEntry, name: str) -> str:
@@ -368,8 +367,8 @@ def _cell(result: FindResult, index: int, name: str, custom: bool) -> str:
 def _print_find(result: FindResult, fmt: FindFormat, columns: Sequence[str] | None) -> None:
     sys.set_int_max_str_digits(0)
     custom = bool(columns)
-    # One column per field: the member list is always the last column, never a second one.
-    names = [n for n in _requested_columns(columns) if n != "members"]
+    # One column per field; the member list is always the last column.
+    names = _requested_columns(columns)
     note = result.completeness_note()
     shown = len(result.entries)
     summary = ("1 class matches" if result.total == 1 else f"{result.total:,} classes match") + (
@@ -386,7 +385,7 @@ def _print_find(result: FindResult, fmt: FindFormat, columns: Sequence[str] | No
                 entry.id,
                 entry.label,
                 str(entry.area),
-                *(_cell(result, index, n, custom) for n in names if n != "members"),
+                *(_cell(result, index, n, custom) for n in names),
                 _members_text(entry, short=True),
             )
         console = _console()
@@ -399,7 +398,7 @@ def _print_find(result: FindResult, fmt: FindFormat, columns: Sequence[str] | No
     typer.echo(note, err=True)
     if fmt is FindFormat.csv:
         writer = csv.writer(sys.stdout, lineterminator="\n")
-        headings = ["id", "label", "area", *[n for n in names if n != "members"], "members"]
+        headings = ["id", "label", "area", *names, "members"]
         writer.writerow(headings)
         for index, entry in enumerate(result.entries):
             writer.writerow(
@@ -407,11 +406,7 @@ def _print_find(result: FindResult, fmt: FindFormat, columns: Sequence[str] | No
                     entry.id,
                     entry.label,
                     entry.area,
-                    *(
-                        result.cell(index, n) if custom else _default_value(entry, n)
-                        for n in names
-                        if n != "members"
-                    ),
+                    *(result.cell(index, n) if custom else _default_value(entry, n) for n in names),
                     _members_text(entry, short=False),
                 ]
             )

@@ -62,7 +62,7 @@ LEVEL_TABLES: dict[Level, str] = {
 #: class is an n-fold iteration, or has a non-cyclic group, when one of its readings is.
 FIRST, LARGEST, EVERY = "label", "largest over the readings", "true of every reading"
 
-Value = int | bool | Fraction | ParameterSet
+Value = int | bool | Fraction | ParameterSet | str  # str: a label as stored
 
 
 @dataclass(frozen=True)
@@ -90,7 +90,6 @@ class Invariant:
     example: str = ""
     aliases: tuple[str, ...] = ()
     json_key: str | None = None  # when the JSON key differs from the name
-    query_name: str | None = None  # when the query field name differs from the name
     over_readings: str = FIRST
     indexed: bool = False
     structural: bool = False
@@ -105,8 +104,8 @@ class Invariant:
 
     @property
     def field_name(self) -> str:
-        """The name of this invariant's query field."""
-        return self.query_name or self.name
+        """The name of this invariant's query field: its name."""
+        return self.name
 
     @property
     def table(self) -> str:
@@ -171,6 +170,12 @@ INVARIANTS: tuple[Invariant, ...] = (
               "arcs of the reachability graph, exact (docs/theory/state-counts.md)",
               "docs/theory/state-counts.md: A·C(α+β−2, α−1)",
               invariants.state_arc_count, "state_arcs", "state_arcs in 100..1000"),
+    Invariant("automorphisms", _C, _BIG, "automorphisms (marked net)", "permutations",
+              "order of the automorphism group of the marked net, exact", _NAUTY,
+              None, "automorphisms", "automorphisms > 1", indexed=True),
+    Invariant("net_automorphisms", _F, _BIG, "automorphisms (net)", "permutations",
+              "order of the automorphism group of the unmarked net (the frame), exact", _NAUTY,
+              None, "automorphisms", "net_automorphisms >= 20"),
     Invariant("tokens", _C, _INT, "tokens", "tokens",
               "tokens of the initial marking, α + β", "docs/theory/initial-marking.md",
               lambda p: p.alpha + p.beta, "tokens", "tokens = 4"),
@@ -182,12 +187,6 @@ INVARIANTS: tuple[Invariant, ...] = (
               "transitions with exactly one marked input place at the initial marking, |α − β|",
               "docs/theory/initial-marking.md",
               invariants.semi_enabled_count, "semi_enabled", "semi_enabled = 0"),
-    Invariant("automorphisms", _C, _BIG, "automorphisms (marked net)", "permutations",
-              "order of the automorphism group of the marked net, exact", _NAUTY,
-              None, "automorphisms", "automorphisms > 1", indexed=True),
-    Invariant("net_automorphisms", _F, _BIG, "automorphisms (net)", "permutations",
-              "order of the automorphism group of the unmarked net (the frame), exact", _NAUTY,
-              None, "automorphisms", "net_automorphisms >= 20"),
     Invariant("cycle_time", _C, _FRAC, "cycle time", "time units",
               "time between two firings of a transition at one time unit per firing, A / min(α, β)",
               "derived; common practice for timed marked graphs (zoo.core.invariants.cycle_time)",
@@ -204,13 +203,14 @@ INVARIANTS: tuple[Invariant, ...] = (
               "largest n such that the system is an n-fold iteration of a smaller one"
               " (docs/theory/iterations.md)", "docs/theory/iterations.md",
               algebra.iteration_depth, "iteration", "iteration >= 2", over_readings=LARGEST),
-    Invariant("reading_count", _C, _INT, "readings", "readings",
-              "readings in the class: 1, or 2 when the swap gives a different reading",
+    Invariant("reading_count", _C, _INT, "number of readings", "readings",
+              "number of readings in the class: 1, or 2 when the swap gives a different reading",
               "counted by the classification (docs/theory/isomorphism.md)",
-              None, "reading_count", "readings = 1", query_name="readings"),
-    Invariant("member_count", _C, _INT, "members", "parameter sets",
-              "parameter sets in the class", "counted by the classification",
-              None, "member_count", "members in 2..4", query_name="members"),
+              None, "reading_count", "reading_count = 1", aliases=("readings",)),
+    Invariant("member_count", _C, _INT, "number of members", "parameter sets",
+              "number of parameter sets in the class",
+              "counted by the classification",
+              None, "member_count", "member_count in 2..4", aliases=("members",)),
     Invariant("alpha", _R, _INT, "α", "tokens",
               "tokens on backward places (free slots, gaps)", "docs/theory/initial-marking.md",
               lambda p: p.alpha, "alpha", "alpha = 4", aliases=("α",), structural=True),

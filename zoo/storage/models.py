@@ -143,6 +143,24 @@ def stored_row(table: str, values: Mapping[str, object]) -> dict[str, object]:
     return row
 
 
+def loaded_values(table: str, row: Any, prefix: str = "") -> dict[str, registry.Value]:
+    """Every registry invariant stored on ``table``, read back from a result row (the inverse
+    of ``stored_row``); ``prefix`` is put before the column labels of a joined table."""
+    mapping = row._mapping
+    values: dict[str, registry.Value] = {}
+    for inv in registry.stored_on(table):
+        first = mapping[prefix + inv.columns[0]]
+        if inv.type is registry.ValueType.FRACTION:
+            values[inv.name] = Fraction(first, mapping[prefix + inv.columns[1]])
+        elif inv.type is registry.ValueType.BOOLEAN:
+            values[inv.name] = bool(first)
+        elif inv.type is registry.ValueType.TEXT:
+            values[inv.name] = str(first)
+        else:  # whole numbers, and exact integers from their decimal text
+            values[inv.name] = int(first)
+    return values
+
+
 def _invariant_mixin(name: str, table: str) -> type:
     """A declarative mixin holding the registry's columns of one table."""
     return type(name, (), invariant_columns(table))
