@@ -6,6 +6,7 @@ import csv
 import io
 import json
 import os
+import re
 from pathlib import Path
 from typing import Any
 
@@ -442,3 +443,64 @@ def test_show_id_links_iterations_both_ways(tmp_path: Path) -> None:
     shown = json.loads(invoke("show", base, "--db", location, "--format", "json").stdout)
     assert shown["iteration_of"] == []
     assert shown["iterations"] == [{"id": twice, "n": 2}, {"id": thrice, "n": 3}]
+
+
+# --- zoo show ID: every per-reading value belongs to its reading (issue 8) -------------------
+
+
+@pytest.fixture(scope="module")
+def area8(tmp_path_factory: pytest.TempPathFactory) -> str:
+    location = str(tmp_path_factory.mktemp("area8") / "catalog.sqlite3")
+    result = runner.invoke(app, ["build", "--max-area", "8", "--db", location, "--jobs", "1"])
+    assert result.exit_code == 0, result.output
+    return location
+
+
+def _reading_rows(out: str) -> dict[str, dict[str, str]]:
+    """The readings table of ``zoo show ID``: reading label -> cells, keyed by heading."""
+    lines = out.splitlines()
+    start = next(i for i, line in enumerate(lines) if line.startswith("reading "))
+    headings = re.split(r"\s{2,}", lines[start].strip())
+    rows = {}
+    for line in lines[start + 1 :]:
+        if not line.startswith("C("):
+            break
+        cells = re.split(r"\s{2,}", line.strip())
+        rows[cells[0]] = dict(zip(headings, cells, strict=False))
+    return rows
+
+
+def test_show_entry_prints_each_readings_own_group_and_iteration(area8: str) -> None:
+    # CY8-8 joins the readings C(2,2,1,3) and C(2,2,2,2) (the exceptional family of
+    # docs/theory/isomorphism.md). Their transition groups are Z_8 and Z_2 x Z_4 (Smith normal
+    # form, docs/theory/lattice-key.md) and only C(2,2,2,2) = iterate(C(2,2,1,1), 2) is an
+    # iteration (docs/theory/iterations.md); the label C(2,2,1,3) must not be shown with the
+    # other reading's values.
+    result = invoke("show", "CY8-8", "--db", area8)
+    assert result.exit_code == 0, result.output
+    rows = _reading_rows(result.stdout)
+    assert rows["C(2,2,1,3)"]["transition group"] == "Z_8"
+    assert rows["C(2,2,1,3)"]["iteration depth"] == "1"
+    assert rows["C(2,2,2,2)"]["transition group"] == "Z_2 × Z_4"
+    assert rows["C(2,2,2,2)"]["iteration depth"] == "2"
+    # The class rows say they are the class's value, made from every reading.
+    assert "transition group (class: largest over the readings)  Z_2 × Z_4" in result.stdout
+    assert "iteration depth (class: largest over the readings)   2" in result.stdout
+    entry = json.loads(invoke("show", "CY8-8", "--db", area8, "--format", "json").stdout)
+    own = {r["label"]: (r["group"], r["iteration"], r["cyclic"]) for r in entry["readings"]}
+    assert own == {"C(2,2,1,3)": ([1, 8], 1, True), "C(2,2,2,2)": ([2, 4], 2, False)}
+    assert (entry["group"], entry["iteration"], entry["cyclic"]) == ([2, 4], 2, False)
+
+
+def test_one_group_notation_in_show_params_and_show_id(area8: str) -> None:
+    # Every class of area 8: the group of each reading in zoo show ID is written exactly as
+    # zoo show PARAMS writes the group of that reading's label (Z_n when cyclic, never Z_1 x).
+    for rank in range(1, 14):
+        shown = invoke("show", f"CY8-{rank}", "--db", area8)
+        assert shown.exit_code == 0, shown.output
+        assert "Z_1 " not in shown.stdout and " x Z_" not in shown.stdout
+        for label, cells in _reading_rows(shown.stdout).items():
+            params = invoke("show", label)
+            row = next(line for line in params.stdout.splitlines() if "transition group" in line)
+            own = row.split("│")[2].strip().split(" (class")[0]
+            assert cells["transition group"] == own, (rank, label)

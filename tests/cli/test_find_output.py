@@ -75,3 +75,45 @@ def test_one_class_is_singular(db: str) -> None:
     assert "1 class matches." in result.stdout and "1 classes" not in result.stdout
     many = runner.invoke(app, ["find", "area = 3", "--db", db])
     assert "2 classes match." in many.stdout
+
+
+# --- one vocabulary (issue 8): `members`/`readings` are lists, their numbers *_count --------
+
+
+def test_members_is_the_list_of_labels_in_every_format(db: str) -> None:
+    query = "area = 8"
+    entries = json.loads(runner.invoke(app, ["find", query, "--db", db, "-f", "json"]).stdout)
+    listed = {e["id"]: e["members"] for e in entries}
+    for e in entries:
+        assert e["member_count"] == len(e["members"]) and e["reading_count"] == len(e["readings"])
+        assert all(isinstance(r["members"], list) for r in e["readings"])
+    rows = list(
+        csv.DictReader(
+            io.StringIO(runner.invoke(app, ["find", query, "--db", db, "-f", "csv"]).stdout)
+        )
+    )
+    assert {r["id"]: r["members"].split(" ") for r in rows} == listed
+    table = runner.invoke(app, ["find", query, "--db", db]).stdout.splitlines()
+    assert table[0].split()[-1] == "members"
+    for line in table[1 : 1 + len(entries)]:
+        class_id = line.split()[0]
+        assert line.rstrip().endswith(", ".join(listed[class_id])), line
+
+
+def test_the_counts_are_member_count_and_reading_count(db: str) -> None:
+    query = "area = 8"
+    for spelling in ("member_count", "members"):  # the old spelling is a documented alias
+        result = runner.invoke(app, ["find", query, "--db", db, "-f", "csv", "-c", spelling])
+        rows = list(csv.DictReader(io.StringIO(result.stdout)))
+        assert list(rows[0])[3:] == ["member_count", "members"]
+        assert all(int(r["member_count"]) == len(r["members"].split(" ")) for r in rows)
+    counts = {
+        q: runner.invoke(app, ["find", q, "--db", db, "--count"]).stdout
+        for q in ("member_count > 1", "members > 1", "reading_count = 2", "readings = 2")
+    }
+    assert counts["member_count > 1"] == counts["members > 1"]
+    assert counts["reading_count = 2"] == counts["readings = 2"]
+    jsonl = runner.invoke(app, ["find", query, "--db", db, "-f", "jsonl", "-c", "readings"])
+    for line in jsonl.stdout.splitlines():
+        item = json.loads(line)
+        assert isinstance(item["members"], list) and isinstance(item["reading_count"], int)

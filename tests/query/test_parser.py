@@ -34,9 +34,10 @@ from zoo.query.parser import (
 )
 
 DOCS = Path(__file__).resolve().parents[2] / "docs" / "query-language.md"
-FIELD_LIST = (
-    "area, loop (cyc), states, state_arcs, tokens, enabled, semi_enabled, automorphisms, "
-    "net_automorphisms, cycle_time, group_d1, cyclic, iteration, readings, members, alpha (α), "
+FIELD_LIST = (  # issue 8, one vocabulary: the counts are reading_count and member_count
+    "area, loop (cyc), states, state_arcs, automorphisms, net_automorphisms, tokens, enabled, "
+    "semi_enabled, cycle_time, group_d1, cyclic, iteration, reading_count (readings), "
+    "member_count (members), alpha (α), "
     "beta (β), processes, regular, slowness, forward_count, forward_length, forward_tokens, "
     "backward_count, backward_length, backward_tokens, gamma (γ), delta (δ)"
 )

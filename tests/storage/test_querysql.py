@@ -138,8 +138,8 @@ def build_catalog_data() -> CatalogData:
                 "group_d1": algebra.transition_group(label)[0],
                 "cyclic": algebra.transition_group(label)[0] == 1,
                 "iteration": algebra.iteration_depth(label),
-                "readings": len(readings),
-                "members": len(members),
+                "reading_count": len(readings),
+                "member_count": len(members),
             }
             data.classes.append(
                 {

@@ -33,7 +33,7 @@ from zoo.catalog.seeds import Seed, load_seed_directory
 from zoo.catalog.service import MAX_BUILD_AREA, AreaStats, Catalog, stored_class_id
 from zoo.errors import CatalogError, ParameterError
 from zoo.storage import database
-from zoo.storage.models import Base, sortable_key
+from zoo.storage.models import Base, stored_row
 from zoo.version import __version__
 
 __all__ = [
@@ -296,10 +296,9 @@ def _insert_area_rows(connection: Connection, result: AreaClassification) -> Non
             "rank": frame.rank,
             "label": str(frame.label),
             "fingerprint": frame.fingerprint,
-            "automorphisms": str(frame.automorphisms),
-            "automorphisms_key": sortable_key(frame.automorphisms),
             "lattice_g": frame.lattice_g,
             "lattice_r": frame.lattice_r,
+            **stored_row("frames", frame.values),
         }
         for frame in result.frames
     ]
@@ -325,18 +324,7 @@ def _insert_area_rows(connection: Connection, result: AreaClassification) -> Non
                     "beta": reading.beta,
                     "lattice_g": reading.lattice_g,
                     "lattice_r": reading.lattice_r,
-                    "processes": reading.processes,
-                    "regular": reading.regular,
-                    "slowness_num": reading.slowness.numerator,
-                    "slowness_den": reading.slowness.denominator,
-                    "forward_count": reading.forward.count,
-                    "forward_length": reading.forward.length,
-                    "forward_tokens": reading.forward.tokens,
-                    "backward_count": reading.backward.count,
-                    "backward_length": reading.backward.length,
-                    "backward_tokens": reading.backward.tokens,
-                    "nf_beta_delta": str(reading.nf_beta_delta),
-                    "nf_alpha_gamma": str(reading.nf_alpha_gamma),
+                    **stored_row("readings", reading.values),
                 }
             )
             parameter_sets.extend(
@@ -489,21 +477,5 @@ def _class_row(c: ClassSummary) -> dict[str, object]:
         "label_delta": label.delta,
         "frame_id": c.frame_id,
         "fingerprint": c.fingerprint,
-        "loop": c.loop,
-        "states": str(c.states),
-        "states_key": sortable_key(c.states),
-        "state_arcs": str(c.state_arcs),
-        "state_arcs_key": sortable_key(c.state_arcs),
-        "automorphisms": str(c.automorphisms),
-        "automorphisms_key": sortable_key(c.automorphisms),
-        "tokens": c.tokens,
-        "enabled": c.enabled,
-        "semi_enabled": c.semi_enabled,
-        "cycle_time_num": c.cycle_time.numerator,
-        "cycle_time_den": c.cycle_time.denominator,
-        "group_d1": c.group_d1,
-        "cyclic": c.group_d1 == 1,
-        "iteration": c.iteration,
-        "reading_count": len(c.readings),
-        "member_count": sum(len(r.members) for r in c.readings),
+        **stored_row("classes", c.values),  # every class invariant of the registry
     }

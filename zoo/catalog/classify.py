@@ -25,14 +25,14 @@ the catalog build then stores nothing for that area. Areas are independent, so
 from __future__ import annotations
 
 import time
-from collections.abc import Callable, Iterable
+from collections.abc import Callable, Iterable, Mapping
 from dataclasses import dataclass, field
 from fractions import Fraction
 from typing import Protocol
 
 from zoo.catalog.enumeration import iter_parameter_tuples
 from zoo.catalog.identifiers import class_identifier, frame_identifier
-from zoo.core import algebra, invariants
+from zoo.core import algebra, invariants, registry
 from zoo.core.params import ParameterSet
 from zoo.errors import CatalogError
 
@@ -72,6 +72,8 @@ class ReadingSummary:
     backward: invariants.CycleFamily
     nf_beta_delta: ParameterSet
     nf_alpha_gamma: ParameterSet
+    #: Every reading-level invariant of the registry (zoo.core.registry), by name: what is stored.
+    values: Mapping[str, object] = field(default_factory=dict)
 
     @property
     def label(self) -> ParameterSet:
@@ -115,6 +117,8 @@ class ClassSummary:
     cycle_time: Fraction
     group_d1: int
     iteration: int
+    #: Every class-level invariant of the registry (zoo.core.registry), by name: what is stored.
+    values: Mapping[str, object] = field(default_factory=dict)
 
     @property
     def label(self) -> ParameterSet:
@@ -138,6 +142,8 @@ class FrameSummary:
     lattice_g: int
     lattice_r: int
     class_ids: tuple[str, ...]
+    #: Every frame-level invariant of the registry (zoo.core.registry), by name: what is stored.
+    values: Mapping[str, object] = field(default_factory=dict)
 
 
 @dataclass(frozen=True)
@@ -200,20 +206,56 @@ def _canonical_functions() -> tuple[FormFunction, FormFunction]:
 def _summarise_reading(members: Members) -> ReadingSummary:
     p = members[0]
     key = algebra.lattice_key(p)
+    values = {name: compute(p) for name, compute in _READING_FORMULAS}
     return ReadingSummary(
         alpha=p.alpha,
         beta=p.beta,
         lattice_g=key.g,
         lattice_r=key.r,
         members=members,
-        processes=invariants.process_count(p),
-        regular=invariants.is_regular(p),
-        slowness=invariants.slowness(p),
-        forward=invariants.forward_cycles(p),
-        backward=invariants.backward_cycles(p),
-        nf_beta_delta=algebra.normal_form_beta_delta(p),
-        nf_alpha_gamma=algebra.normal_form_alpha_gamma(p),
+        processes=_int(values["processes"]),
+        regular=bool(values["regular"]),
+        slowness=_fraction(values["slowness"]),
+        forward=invariants.CycleFamily(
+            _int(values["forward_count"]),
+            _int(values["forward_length"]),
+            _int(values["forward_tokens"]),
+        ),
+        backward=invariants.CycleFamily(
+            _int(values["backward_count"]),
+            _int(values["backward_length"]),
+            _int(values["backward_tokens"]),
+        ),
+        nf_beta_delta=_params(values["normal_form_beta_delta"]),
+        nf_alpha_gamma=_params(values["normal_form_alpha_gamma"]),
+        values=values,
     )
+
+
+#: (name, formula) of every registry invariant stored per reading, looked up once.
+_READING_FORMULAS = tuple(
+    (inv.name, inv.compute) for inv in registry.stored_on("readings") if inv.compute is not None
+)
+
+
+def _int(value: object) -> int:
+    assert isinstance(value, int), value  # the registry's type of this invariant
+    return value
+
+
+def _params(value: object) -> ParameterSet:
+    assert isinstance(value, ParameterSet), value
+    return value
+
+
+def _fraction(value: object) -> Fraction:
+    assert isinstance(value, Fraction), value
+    return value
+
+
+def _formulas(table: str) -> tuple[registry.Invariant, ...]:
+    """The registry invariants stored on ``table`` that are formulas of the parameters."""
+    return tuple(inv for inv in registry.stored_on(table) if inv.compute is not None)
 
 
 def _group(items: Iterable[tuple[object, ParameterSet]]) -> list[Members]:
@@ -363,12 +405,20 @@ def classify_area(
                 lattice_g=key.g,
                 lattice_r=key.r,
                 class_ids=tuple(class_identifier(area, i + 1) for i in sorted(class_indexes)),
+                values={"net_automorphisms": int(form.automorphisms)},  # nauty
             )
         )
     classes: list[ClassSummary] = []
     for index, (readings, form) in enumerate(zip(class_groups, class_forms, strict=True)):
         summaries = tuple(_summarise_reading(members) for members in readings)
         p = readings[0][0]
+        labels = tuple(r[0] for r in readings)
+        values: dict[str, object] = {
+            **{inv.name: inv.of_class(labels) for inv in _formulas("classes")},
+            "automorphisms": int(form.automorphisms),  # nauty
+            "reading_count": len(readings),
+            "member_count": sum(len(r) for r in readings),
+        }
         classes.append(
             ClassSummary(
                 id=class_identifier(area, index + 1),
@@ -378,18 +428,20 @@ def classify_area(
                 fingerprint=form.fingerprint,
                 automorphisms=int(form.automorphisms),
                 readings=summaries,
-                loop=invariants.minimal_cycle_length(p),
-                states=invariants.reachable_state_count(p),
-                state_arcs=invariants.state_arc_count(p),
-                tokens=p.alpha + p.beta,
-                enabled=invariants.enabled_count(p),
-                semi_enabled=invariants.semi_enabled_count(p),
-                cycle_time=invariants.cycle_time(p),
+                loop=_int(values["loop"]),
+                states=_int(values["states"]),
+                state_arcs=_int(values["state_arcs"]),
+                tokens=_int(values["tokens"]),
+                enabled=_int(values["enabled"]),
+                semi_enabled=_int(values["semi_enabled"]),
+                cycle_time=_fraction(values["cycle_time"]),
                 # Both depend on the typed structure, so the exceptional (2,-2) merges can join
                 # readings that differ here: a class is an n-fold iteration (or has a
-                # non-cyclic transition group) when one of its readings is.
-                group_d1=max(algebra.transition_group(r[0])[0] for r in readings),
-                iteration=max(algebra.iteration_depth(r[0]) for r in readings),
+                # non-cyclic transition group) when one of its readings is (the registry's rule
+                # over readings, zoo.core.registry.LARGEST).
+                group_d1=_int(values["group_d1"]),
+                iteration=_int(values["iteration"]),
+                values=values,
             )
         )
     finished = time.perf_counter()

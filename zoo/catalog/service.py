@@ -31,6 +31,8 @@ from sqlalchemy import Engine, and_, func, or_, select
 from sqlalchemy.engine import Connection
 
 from zoo.catalog.identifiers import Identifier, read_identifier
+from zoo.core import registry
+from zoo.core.entries import ClassEntry, FrameEntry, ReadingEntry, SeedEntry, frozen_values
 from zoo.core.params import MAX_AREA, ParameterSet, parse_params
 from zoo.errors import CatalogError, NotInCatalog, ParameterError
 from zoo.storage import database
@@ -43,6 +45,7 @@ from zoo.storage.models import (
     ParameterSetRecord,
     ReadingRecord,
     SeedRecord,
+    loaded_values,
 )
 
 __all__ = [
@@ -52,6 +55,7 @@ __all__ = [
     "ClassEntry",
     "FindResult",
     "FrameEntry",
+    "ReadingEntry",
     "SeedEntry",
     "build_command",
     "column_cell",
@@ -72,85 +76,18 @@ _FRAMES = _TABLES["frames"]
 _CLASSES = _TABLES["classes"]
 _READINGS = _TABLES["readings"]
 _SEEDS = _TABLES["seeds"]
+#: The frame's stored invariants, joined to a class row as ``frame_<column>``.
+_FRAME_VALUE_COLUMNS = tuple(
+    _FRAMES.c[column].label(f"frame_{column}")
+    for inv in registry.stored_on("frames")
+    for column in inv.columns
+)
 
 
 # --- value types ---------------------------------------------------------------------------
 
 
-@dataclass(frozen=True)
-class SeedEntry:
-    """A named seed (seeds_data/) and the class it belongs to, if that area is stored."""
-
-    name: str
-    description: str
-    params: ParameterSet
-    class_id: str | None
-
-    def as_dict(self) -> dict[str, object]:
-        return {
-            "name": self.name,
-            "description": self.description,
-            "params": str(self.params),
-            "class_id": self.class_id,
-        }
-
-
-@dataclass(frozen=True)
-class ClassEntry:
-    """A catalog entry: an isomorphism class of marked nets, places untyped
-    (docs/theory/isomorphism.md)."""
-
-    id: str
-    label: str
-    area: int
-    frame_id: str
-    fingerprint: str
-    members: tuple[ParameterSet, ...]  # sorted
-    readings: tuple[dict[str, object], ...]  # reading-level invariants, by smallest member
-    invariants: dict[str, object]  # class-level invariants (keys as zoo show prints them)
-    seeds: tuple[SeedEntry, ...] = ()
-
-    @property
-    def rank(self) -> int:
-        return int(self.id.rsplit("-", 1)[1])
-
-    def as_dict(self) -> dict[str, object]:
-        """A JSON-ready dict: id, label, area, members first, then every invariant."""
-        return {
-            "id": self.id,
-            "label": self.label,
-            "area": self.area,
-            "members": [str(p) for p in self.members],
-            "frame_id": self.frame_id,
-            "fingerprint": self.fingerprint,
-            **self.invariants,
-            "readings": [dict(r) for r in self.readings],
-            "seeds": [s.as_dict() for s in self.seeds],
-        }
-
-
-@dataclass(frozen=True)
-class FrameEntry:
-    """A frame: an isomorphism class of unmarked nets, with the classes that lie on it."""
-
-    id: str
-    label: str
-    area: int
-    fingerprint: str
-    automorphisms: int
-    lattice_key: tuple[int, int, int]
-    class_ids: tuple[str, ...]
-
-    def as_dict(self) -> dict[str, object]:
-        return {
-            "id": self.id,
-            "label": self.label,
-            "area": self.area,
-            "fingerprint": self.fingerprint,
-            "net_automorphisms": self.automorphisms,
-            "lattice_key": list(self.lattice_key),
-            "classes": list(self.class_ids),
-        }
+# Class, reading, frame and seed entries are the frozen typed values of zoo.core.entries.
 
 
 @dataclass(frozen=True)
@@ -437,9 +374,9 @@ class Catalog:
             label=row.label,
             area=row.area,
             fingerprint=row.fingerprint,
-            automorphisms=int(row.automorphisms),
             lattice_key=(row.area, row.lattice_g, row.lattice_r),
             class_ids=tuple(class_ids),
+            invariant_values=frozen_values(loaded_values("frames", row)),
         )
 
     def seeds(self) -> list[SeedEntry]:
@@ -566,7 +503,7 @@ class Catalog:
         seeds: dict[str, list[SeedEntry]] = {}
         for chunk in _chunks(list(ids)):
             for row in connection.execute(
-                select(_CLASSES, _FRAMES.c.automorphisms.label("net_automorphisms"))
+                select(_CLASSES, *_FRAME_VALUE_COLUMNS)
                 .join(_FRAMES, _FRAMES.c.id == _CLASSES.c.frame_id)
                 .where(_CLASSES.c.id.in_(chunk))
             ):
@@ -595,16 +532,15 @@ class Catalog:
             if class_row is None:
                 continue
             row = class_row
-            ordered: list[tuple[tuple[int, int, int, int], dict[str, object]]] = []
+            ordered: list[tuple[tuple[int, int, int, int], ReadingEntry]] = []
             members: list[ParameterSet] = []
             for reading in readings.get(class_id, []):
                 values = sorted(members_of_reading.get(reading.id, []))
                 reading_members = [ParameterSet(*v) for v in values]
                 members.extend(reading_members)
                 first = values[0] if values else (MAX_AREA, 0, 0, 0)
-                ordered.append((first, _reading_dict(reading, reading_members)))
+                ordered.append((first, _reading_entry(reading, reading_members)))
             ordered.sort(key=lambda pair: pair[0])
-            reading_dicts = [d for _, d in ordered]
             entries.append(
                 ClassEntry(
                     id=row.id,
@@ -613,8 +549,10 @@ class Catalog:
                     frame_id=row.frame_id,
                     fingerprint=row.fingerprint,
                     members=tuple(sorted(members)),
-                    readings=tuple(reading_dicts),
-                    invariants=_class_invariants(row),
+                    readings=tuple(r for _, r in ordered),
+                    invariant_values=frozen_values(
+                        {**loaded_values("classes", row), **loaded_values("frames", row, "frame_")}
+                    ),
                     seeds=tuple(sorted(seeds.get(class_id, []), key=lambda s: s.name)),
                 )
             )
@@ -689,54 +627,14 @@ def _fraction_text(numerator: int, denominator: int) -> str:
     return f"{value.numerator}/{value.denominator}"
 
 
-def _class_invariants(row: Any) -> dict[str, object]:
-    cycle_time = Fraction(row.cycle_time_num, row.cycle_time_den)
-    return {
-        "loop": row.loop,
-        "states": int(row.states),
-        "state_arcs": int(row.state_arcs),
-        "automorphisms": int(row.automorphisms),
-        "net_automorphisms": int(row.net_automorphisms),
-        "tokens": row.tokens,
-        "enabled": row.enabled,
-        "semi_enabled": row.semi_enabled,
-        "cycle_time": _fraction_text(row.cycle_time_num, row.cycle_time_den),
-        "cycle_time_float": float(cycle_time),
-        "group": [row.group_d1, row.area // row.group_d1],
-        "cyclic": row.group_d1 == 1,
-        "iteration": row.iteration,
-        "reading_count": row.reading_count,
-        "member_count": row.member_count,
-    }
-
-
-def _reading_dict(row: Any, members: list[ParameterSet]) -> dict[str, object]:
-    slowness = Fraction(row.slowness_num, row.slowness_den)
-    return {
-        "label": str(members[0]) if members else "",
-        "alpha": row.alpha,
-        "beta": row.beta,
-        "tokens_forward": row.beta,
-        "tokens_backward": row.alpha,
-        "lattice_key": [row.area, row.lattice_g, row.lattice_r],
-        "processes": row.processes,
-        "regular": bool(row.regular),
-        "slowness": _fraction_text(row.slowness_num, row.slowness_den),
-        "slowness_float": float(slowness),
-        "forward_cycles": {
-            "count": row.forward_count,
-            "length": row.forward_length,
-            "tokens": row.forward_tokens,
-        },
-        "backward_cycles": {
-            "count": row.backward_count,
-            "length": row.backward_length,
-            "tokens": row.backward_tokens,
-        },
-        "normal_form_beta_delta": row.nf_beta_delta,
-        "normal_form_alpha_gamma": row.nf_alpha_gamma,
-        "members": [str(p) for p in members],
-    }
+def _reading_entry(row: Any, members: list[ParameterSet]) -> ReadingEntry:
+    return ReadingEntry(
+        alpha=row.alpha,
+        beta=row.beta,
+        lattice_key=(row.area, row.lattice_g, row.lattice_r),
+        members=tuple(members),
+        invariant_values=frozen_values(loaded_values("readings", row)),
+    )
 
 
 def _seed_entry(row: Any) -> SeedEntry:

@@ -340,10 +340,9 @@ def _requested_columns(columns: Sequence[str] | None) -> list[str]:
 
 
 def _members_text(entry: ClassEntry, short: bool) -> str:
-    """All members separated by spaces (csv), or their number (table: the list can be long)."""
-    if short:
-        return str(len(entry.members))
-    return " ".join(str(p) for p in entry.members)
+    """The member labels: ", "-separated in the table, space-separated in csv. ``members`` is
+    always this list (one vocabulary, docs/catalog.md); its number is ``member_count``."""
+    return (", " if short else " ").join(str(p) for p in entry.members)
 
 
 def _default_value(entry: ClassEntry, name: str) -> str:
@@ -368,8 +367,8 @@ def _cell(result: FindResult, index: int, name: str, custom: bool) -> str:
 def _print_find(result: FindResult, fmt: FindFormat, columns: Sequence[str] | None) -> None:
     sys.set_int_max_str_digits(0)
     custom = bool(columns)
-    # One column per field: the member list is always the last column, never a second one.
-    names = [n for n in _requested_columns(columns) if n != "members"]
+    # One column per field; the member list is always the last column.
+    names = _requested_columns(columns)
     note = result.completeness_note()
     shown = len(result.entries)
     summary = ("1 class matches" if result.total == 1 else f"{result.total:,} classes match") + (
@@ -386,7 +385,7 @@ def _print_find(result: FindResult, fmt: FindFormat, columns: Sequence[str] | No
                 entry.id,
                 entry.label,
                 str(entry.area),
-                *(_cell(result, index, n, custom) for n in names if n != "members"),
+                *(_cell(result, index, n, custom) for n in names),
                 _members_text(entry, short=True),
             )
         console = _console()
@@ -399,7 +398,7 @@ def _print_find(result: FindResult, fmt: FindFormat, columns: Sequence[str] | No
     typer.echo(note, err=True)
     if fmt is FindFormat.csv:
         writer = csv.writer(sys.stdout, lineterminator="\n")
-        headings = ["id", "label", "area", *[n for n in names if n != "members"], "members"]
+        headings = ["id", "label", "area", *names, "members"]
         writer.writerow(headings)
         for index, entry in enumerate(result.entries):
             writer.writerow(
@@ -407,11 +406,7 @@ def _print_find(result: FindResult, fmt: FindFormat, columns: Sequence[str] | No
                     entry.id,
                     entry.label,
                     entry.area,
-                    *(
-                        result.cell(index, n) if custom else _default_value(entry, n)
-                        for n in names
-                        if n != "members"
-                    ),
+                    *(result.cell(index, n) if custom else _default_value(entry, n) for n in names),
                     _members_text(entry, short=False),
                 ]
             )
@@ -472,57 +467,56 @@ def _number_text(value: object) -> str:
     return str(value)
 
 
+def _invariant_text(inv: Any, value: object) -> str:
+    """A registry invariant's JSON value as table text: one group notation (Z_8, Z_2 × Z_4),
+    fractions without a denominator of 1, yes/no, exact whole numbers with separators."""
+    from zoo.core.registry import ValueType, group_text
+
+    if inv.json_pair and isinstance(value, list):
+        return group_text(*value)
+    if inv.type is ValueType.FRACTION:
+        return fraction_cell(str(value))
+    return _number_text(value)
+
+
+def _entry_rows(level_filter: Any) -> list[Any]:
+    from zoo.core import registry
+
+    return [inv for inv in registry.INVARIANTS if level_filter(inv) and not inv.structural]
+
+
 def _print_entry_table(report: dict[str, Any]) -> None:
     from rich.table import Table
+
+    from zoo.core import registry
 
     console = _console()
     console.print(f"[bold]{report['id']}[/bold]  {report['label']}  (area {report['area']})")
     table = Table(show_header=False, box=None, pad_edge=False)
     table.add_column("field", style="bold")
     table.add_column("value")
-    rows = [
-        ("loop (shortest cycle)", report["loop"]),
-        ("reachable states", report["states"]),
-        ("state arcs", report["state_arcs"]),
-        ("automorphisms (marked net)", report["automorphisms"]),
-        ("automorphisms (net)", report["net_automorphisms"]),
-        ("tokens", report["tokens"]),
-        ("enabled / semi-enabled", f"{report['enabled']} / {report['semi_enabled']}"),
-        ("cycle time", fraction_cell(report["cycle_time"])),
-        ("transition group", "Z_{} x Z_{}".format(*report["group"])),
-        ("cyclic group", report["cyclic"]),
-        ("iteration depth", report["iteration"]),
-    ]
-    for name, value in rows:
-        table.add_row(name, _number_text(value))
+    # Every class-level value, labelled from the registry; one made from every reading says how
+    # (each reading's own value is in the readings table below).
+    class_level = (registry.Level.CLASS, registry.Level.FRAME)
+    for inv in _entry_rows(lambda i: i.level in class_level):
+        label = inv.label
+        if inv.over_readings != registry.FIRST:
+            label += f" (class: {inv.over_readings})"
+        table.add_row(label, _invariant_text(inv, registry.value_in(report, inv)))
     console.print(table)
     print_whole_lines([("fingerprint", report["fingerprint"])])  # never folded: copied whole
     members = ", ".join(report["members"])
     console.print(f"[bold]Members[/bold] ({len(report['members'])}): {members}")
     readings = Table(show_header=True, header_style="bold", box=None, pad_edge=False)
-    for heading in (
-        "reading",
-        "processes",
-        "regular",
-        "slowness",
-        "forward",
-        "backward",
-        "NF_bd",
-        "NF_ag",
-        "members",
-    ):
+    columns = _entry_rows(lambda i: i.level is registry.Level.READING) + _entry_rows(
+        lambda i: i.over_readings != registry.FIRST
+    )
+    for heading in ("reading", *(inv.label for inv in columns), "members"):
         readings.add_column(heading)
     for r in report["readings"]:
-        fwd, bwd = r["forward_cycles"], r["backward_cycles"]
         readings.add_row(
             r["label"],
-            str(r["processes"]),
-            "yes" if r["regular"] else "no",
-            fraction_cell(r["slowness"]),
-            f"{fwd['count']}x{fwd['length']} ({fwd['tokens']})",
-            f"{bwd['count']}x{bwd['length']} ({bwd['tokens']})",
-            r["normal_form_beta_delta"],
-            r["normal_form_alpha_gamma"],
+            *(_invariant_text(inv, registry.value_in(r, inv)) for inv in columns),
             ", ".join(r["members"]),
         )
     console.print("[bold]Readings[/bold]")

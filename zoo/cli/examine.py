@@ -220,8 +220,9 @@ def _names_text(names: list[str] | None, count: int) -> str:
 
 
 def _group_name(group: list[int]) -> str:
-    d1, rest = group
-    return f"Z_{rest}" if d1 == 1 else f"Z_{d1} × Z_{rest}"
+    from zoo.core.registry import group_text
+
+    return group_text(*group)  # the one group notation, as in zoo show ID
 
 
 def _group_text(group: list[int], class_group: list[int]) -> str:
@@ -243,6 +244,13 @@ def _or_dash(value: object) -> str:
     return str(value)
 
 
+def _label(name: str) -> str:
+    """The table label of a registry invariant (zoo.core.registry), as in zoo show ID."""
+    from zoo.core.registry import invariant
+
+    return invariant(name).label
+
+
 def _print_show_table(report: dict[str, Any]) -> None:
 
     loop_note = (
@@ -257,45 +265,45 @@ def _print_show_table(report: dict[str, Any]) -> None:
         ("normal form βδ", report["normal_form_beta_delta"], "β/δ-steps"),
         ("normal form αγ", report["normal_form_alpha_gamma"], "α/γ-steps"),
         ("lattice key (A,g,r)", "({},{},{})".format(*report["lattice_key"]), "Hermite basis"),
-        ("transition group", _group_text(report["group"], report["class_group"]), "Smith form"),
-        ("area (transitions)", number_text(report["area"]), "A = αδ + βγ"),
+        (_label("group_d1"), _group_text(report["group"], report["class_group"]), "Smith form"),
+        (_label("area"), number_text(report["area"]), "A = αδ + βγ"),
         ("places", number_text(report["places"]), "2A"),
         (
-            "tokens",
+            _label("tokens"),
             f"{report['tokens']} ({report['tokens_forward']} fwd, {report['tokens_backward']} bwd)",
             "α + β",
         ),
         (
-            "loop (shortest cycle)",
+            _label("loop"),
             f"{report['loop']} (vector ({xi},{eta}), {report['loop_tokens']} token"
             f"{'s' if report['loop_tokens'] != 1 else ''})",
             loop_note,
         ),
         ("forward cycles", _cycles_text(report["forward_cycles"]), "gcd(β,δ)"),
         ("backward cycles", _cycles_text(report["backward_cycles"]), "gcd(α,γ)"),
-        ("processes", str(report["processes"]), "forward cycles"),
-        ("regular", "yes" if report["regular"] else "no", "β divides δ"),
+        (_label("processes"), str(report["processes"]), "forward cycles"),
+        (_label("regular"), "yes" if report["regular"] else "no", "β divides δ"),
         (
-            "iteration",
+            _label("iteration"),
             _with_class_value(report["iteration"], report["class_iteration"]),
             "largest n-fold",
         ),
         (
-            "enabled at M0",
+            _label("enabled"),
             _names_text(report["enabled_transitions"], report["enabled"]),
             "min(α,β)",
         ),
         (
-            "semi-enabled at M0",
+            _label("semi_enabled"),
             _names_text(report["semi_enabled_transitions"], report["semi_enabled"]),
             "|α − β|",
         ),
-        ("reachable states", number_text(report["states"]), "A·C(α+β,α)/(α+β)"),
-        ("reachability arcs", number_text(report["state_arcs"]), "A·C(α+β−2,α−1)"),
-        ("slowness", fraction_cell(report["slowness"]), "(α − β)/(α + β)"),
-        ("cycle time", fraction_cell(report["cycle_time"]), "A/min(α,β)"),
-        ("automorphisms (system)", _or_dash(report["automorphisms"]), "nauty"),
-        ("automorphisms (net)", _or_dash(report["net_automorphisms"]), "nauty"),
+        (_label("states"), number_text(report["states"]), "A·C(α+β,α)/(α+β)"),
+        (_label("state_arcs"), number_text(report["state_arcs"]), "A·C(α+β−2,α−1)"),
+        (_label("slowness"), fraction_cell(report["slowness"]), "(α − β)/(α + β)"),
+        (_label("cycle_time"), fraction_cell(report["cycle_time"]), "A/min(α,β)"),
+        (_label("automorphisms"), _or_dash(report["automorphisms"]), "nauty"),
+        (_label("net_automorphisms"), _or_dash(report["net_automorphisms"]), "nauty"),
     ]
     # Fingerprints go on lines of their own: a folded one cannot be copied (nauty, v1:sha256).
     fingerprints = [

@@ -23,7 +23,7 @@ from dataclasses import dataclass
 from fractions import Fraction
 from typing import Any
 
-from zoo.core import algebra, invariants
+from zoo.core import algebra, invariants, registry
 from zoo.core.params import ParameterSet
 from zoo.core.reachability import DEFAULT_STATE_LIMIT
 from zoo.errors import LimitExceeded
@@ -156,6 +156,7 @@ def invariant_report(p: ParameterSet, *, explicit: bool = True) -> Report:
         "cycle_time": fraction_text(cycle_time),
         "cycle_time_float": float(cycle_time),
         "group": list(algebra.transition_group(p)),
+        "cyclic": algebra.transition_group(p)[0] == 1,
         "lattice_key": [key.area, key.g, key.r],
         "swap": str(p.swap()),
         "normal_form_beta_delta": str(algebra.normal_form_beta_delta(p)),
@@ -169,6 +170,15 @@ def invariant_report(p: ParameterSet, *, explicit: bool = True) -> Report:
         "net_fingerprint": forms.net_fingerprint if forms else None,
         "notes": notes,
     }
+    # Every other formula of the registry, so that a new invariant reaches zoo show by its
+    # registry entry alone (the keys above keep their published order; notes stay last).
+    for inv in registry.INVARIANTS:
+        top = inv.key.partition(".")[0]
+        if inv.compute is None or inv.structural or top in report:
+            continue
+        if inv.level in (registry.Level.CLASS, registry.Level.READING, registry.Level.FRAME):
+            report[inv.key] = registry.json_value(inv, inv.compute(p), p.area)
+    report["notes"] = report.pop("notes")
     return report
 
 

@@ -10,6 +10,7 @@ from typing import Any
 
 from zoo.catalog.identifiers import read_identifier
 from zoo.catalog.service import Catalog
+from zoo.core import registry
 from zoo.core.iterations import class_iteration_bases, class_iterations
 from zoo.core.params import ParameterSet, parse_params
 from zoo.publish.cite import cite
@@ -34,6 +35,7 @@ def entry_report(catalog: Catalog, ref: str) -> dict[str, Any]:
     entry = catalog.get(ref)
     frame = catalog.frame(entry.frame_id)
     report = entry.as_dict()
+    report["readings"] = [_with_reading_values(dict(r), entry.area) for r in entry.readings]
     report["frame"] = {
         "id": frame.id,
         "label": frame.label,
@@ -46,6 +48,18 @@ def entry_report(catalog: Catalog, ref: str) -> dict[str, Any]:
     report["complete_to"] = complete_to
     report.update(iteration_links(catalog, parse_params(entry.label), complete_to))
     return report
+
+
+def _with_reading_values(reading: dict[str, Any], area: int) -> dict[str, Any]:
+    """A reading's JSON with its own values of the class invariants made from every reading
+    (transition group, cyclic, iteration: docs/theory/isomorphism.md), so that every
+    per-reading value shown belongs to that reading."""
+    label = parse_params(reading["label"])
+    values = dict(reading)
+    for inv in registry.INVARIANTS:
+        if inv.over_readings != registry.FIRST and inv.compute is not None:
+            values[inv.key] = registry.json_value(inv, inv.compute(label), area)
+    return values
 
 
 def iteration_links(

@@ -12,9 +12,10 @@ ordering keys as text is numeric order on SQLite and PostgreSQL alike.
 
 from __future__ import annotations
 
-from collections.abc import Callable
+from collections.abc import Callable, Mapping
 from datetime import datetime
-from typing import Any
+from fractions import Fraction
+from typing import TYPE_CHECKING, Any
 
 from sqlalchemy import (
     Boolean,
@@ -29,6 +30,8 @@ from sqlalchemy import (
 )
 from sqlalchemy.engine.default import DefaultExecutionContext
 from sqlalchemy.orm import DeclarativeBase, Mapped, mapped_column, relationship
+
+from zoo.core import registry
 
 
 def sortable_key(n: int) -> str:
@@ -69,6 +72,112 @@ def _key_of(column: str) -> Callable[[DefaultExecutionContext], str]:
 def _cyclic_default(context: DefaultExecutionContext) -> bool:
     # The transition group Z_d1 x Z_(A/d1) is cyclic iff d1 = 1 (docs/theory/lattice-key.md).
     return int(_current_parameters(context)["group_d1"]) == 1
+
+
+#: Insert defaults of stored values that follow from other columns of the same row.
+_DERIVED_DEFAULTS: dict[str, Callable[[DefaultExecutionContext], Any]] = {
+    "cyclic": _cyclic_default,
+}
+
+
+def invariant_columns(table: str) -> dict[str, Any]:
+    """The mapped columns of every registry invariant stored on ``table``, in registry order.
+
+    Exact integers are decimal text beside a sortable key filled on insert; fractions are a
+    numerator and a denominator; an indexed invariant is indexed on the column it sorts by.
+    """
+    columns: dict[str, Any] = {}
+    for inv in registry.stored_on(table):
+        names = inv.columns
+        if inv.type is registry.ValueType.BIG_INTEGER:
+            columns[names[0]] = mapped_column(Text, nullable=False)
+            columns[names[1]] = mapped_column(
+                Text, nullable=False, index=inv.indexed or None, default=_key_of(names[0])
+            )
+        elif inv.type is registry.ValueType.FRACTION:
+            columns[names[0]] = mapped_column(Integer, nullable=False)
+            columns[names[1]] = mapped_column(Integer, nullable=False)
+        elif inv.type is registry.ValueType.BOOLEAN:
+            columns[names[0]] = mapped_column(
+                Boolean, nullable=False, default=_DERIVED_DEFAULTS.get(names[0])
+            )
+        elif inv.type is registry.ValueType.TEXT:
+            columns[names[0]] = mapped_column(Text, nullable=False)
+        else:
+            columns[names[0]] = mapped_column(Integer, nullable=False, index=inv.indexed or None)
+    return columns
+
+
+def stored_values(inv: registry.Invariant, value: object) -> dict[str, object]:
+    """The column values that store one invariant's value (the one converter of values to
+    rows): exact integers as decimal text beside their sortable key, fractions as numerator
+    and denominator.
+
+    >>> from fractions import Fraction
+    >>> stored_values(registry.invariant("states"), 40)
+    {'states': '40', 'states_key': '000240'}
+    >>> stored_values(registry.invariant("slowness"), Fraction(-1, 3))
+    {'slowness_num': -1, 'slowness_den': 3}
+    """
+    names = inv.columns
+    if inv.type is registry.ValueType.BIG_INTEGER:
+        number = value if isinstance(value, int) else int(str(value))
+        return {names[0]: str(number), names[1]: sortable_key(number)}
+    if inv.type is registry.ValueType.FRACTION:
+        fraction = value if isinstance(value, Fraction) else Fraction(str(value))
+        return {names[0]: fraction.numerator, names[1]: fraction.denominator}
+    if inv.type is registry.ValueType.BOOLEAN:
+        return {names[0]: bool(value)}
+    if inv.type is registry.ValueType.TEXT:
+        return {names[0]: str(value)}
+    return {names[0]: value if isinstance(value, int) else int(str(value))}
+
+
+def stored_row(table: str, values: Mapping[str, object]) -> dict[str, object]:
+    """The columns of every registry invariant stored on ``table``, from values by name."""
+    row: dict[str, object] = {}
+    for inv in registry.stored_on(table):
+        if inv.name not in values:
+            raise KeyError(f"no value of {inv.name} for a row of {table}")
+        row.update(stored_values(inv, values[inv.name]))
+    return row
+
+
+def loaded_values(table: str, row: Any, prefix: str = "") -> dict[str, registry.Value]:
+    """Every registry invariant stored on ``table``, read back from a result row (the inverse
+    of ``stored_row``); ``prefix`` is put before the column labels of a joined table."""
+    mapping = row._mapping
+    values: dict[str, registry.Value] = {}
+    for inv in registry.stored_on(table):
+        first = mapping[prefix + inv.columns[0]]
+        if inv.type is registry.ValueType.FRACTION:
+            values[inv.name] = Fraction(first, mapping[prefix + inv.columns[1]])
+        elif inv.type is registry.ValueType.BOOLEAN:
+            values[inv.name] = bool(first)
+        elif inv.type is registry.ValueType.TEXT:
+            values[inv.name] = str(first)
+        else:  # whole numbers, and exact integers from their decimal text
+            values[inv.name] = int(first)
+    return values
+
+
+def _invariant_mixin(name: str, table: str) -> type:
+    """A declarative mixin holding the registry's columns of one table."""
+    return type(name, (), invariant_columns(table))
+
+
+if TYPE_CHECKING:  # the type checker sees plain bases; the columns are made at import
+
+    class ClassInvariantColumns: ...
+
+    class ReadingInvariantColumns: ...
+
+    class FrameInvariantColumns: ...
+
+else:
+    ClassInvariantColumns = _invariant_mixin("ClassInvariantColumns", "classes")
+    ReadingInvariantColumns = _invariant_mixin("ReadingInvariantColumns", "readings")
+    FrameInvariantColumns = _invariant_mixin("FrameInvariantColumns", "frames")
 
 
 #: Constraint and index names, fixed from the first revision on so that every later migration
@@ -121,7 +230,7 @@ class AreaRecord(Base):
     __table_args__ = (CheckConstraint("area >= 1", name="area_positive"),)
 
 
-class FrameRecord(Base):
+class FrameRecord(FrameInvariantColumns, Base):
     """A frame: an isomorphism class of unmarked nets (docs/theory/isomorphism.md),
     ``FR{area}-{rank}``."""
 
@@ -132,8 +241,8 @@ class FrameRecord(Base):
     rank: Mapped[int] = mapped_column(Integer)
     label: Mapped[str] = mapped_column(Text)
     fingerprint: Mapped[str] = mapped_column(Text, unique=True)
-    automorphisms: Mapped[str] = mapped_column(Text)  # exact order as decimal text
-    automorphisms_key: Mapped[str] = mapped_column(Text, default=_key_of("automorphisms"))
+    # automorphisms (exact decimal text) and its sortable key come from the registry of
+    # invariants (net_automorphisms) through FrameInvariantColumns.
     lattice_g: Mapped[int] = mapped_column(Integer)
     lattice_r: Mapped[int] = mapped_column(Integer)
 
@@ -144,7 +253,7 @@ class FrameRecord(Base):
     __table_args__ = (UniqueConstraint("area", "rank"),)
 
 
-class ClassRecord(Base):
+class ClassRecord(ClassInvariantColumns, Base):
     """A catalog entry: an isomorphism class of marked nets, places not typed, ``CY{area}-{rank}``.
 
     Holds the class-level invariants (the same for every reading, docs/theory/isomorphism.md).
@@ -162,26 +271,8 @@ class ClassRecord(Base):
     label_delta: Mapped[int] = mapped_column(Integer)
     frame_id: Mapped[str] = mapped_column(ForeignKey("frames.id"), index=True)
     fingerprint: Mapped[str] = mapped_column(Text, unique=True)
-    # minimal cycle length, docs/theory/minimal-cycle-length.md
-    loop: Mapped[int] = mapped_column(Integer, index=True)
-    states: Mapped[str] = mapped_column(Text)  # reachable markings, exact decimal text
-    states_key: Mapped[str] = mapped_column(Text, index=True, default=_key_of("states"))
-    state_arcs: Mapped[str] = mapped_column(Text)
-    state_arcs_key: Mapped[str] = mapped_column(Text, default=_key_of("state_arcs"))
-    automorphisms: Mapped[str] = mapped_column(Text)  # exact order as decimal text
-    automorphisms_key: Mapped[str] = mapped_column(
-        Text, index=True, default=_key_of("automorphisms")
-    )
-    tokens: Mapped[int] = mapped_column(Integer)  # alpha + beta
-    enabled: Mapped[int] = mapped_column(Integer)
-    semi_enabled: Mapped[int] = mapped_column(Integer)
-    cycle_time_num: Mapped[int] = mapped_column(Integer)
-    cycle_time_den: Mapped[int] = mapped_column(Integer)
-    group_d1: Mapped[int] = mapped_column(Integer)  # transition group Z_d1 x Z_(A/d1)
-    cyclic: Mapped[bool] = mapped_column(Boolean, default=_cyclic_default)  # group_d1 == 1
-    iteration: Mapped[int] = mapped_column(Integer)  # iteration depth, docs/theory/iterations.md
-    reading_count: Mapped[int] = mapped_column(Integer)
-    member_count: Mapped[int] = mapped_column(Integer)
+    # The invariant columns (loop, states, ..., member_count) come from the registry of
+    # invariants through ClassInvariantColumns.
 
     frame: Mapped[FrameRecord] = relationship(back_populates="classes")
     readings: Mapped[list[ReadingRecord]] = relationship(
@@ -197,7 +288,7 @@ class ClassRecord(Base):
     __table_args__ = (UniqueConstraint("area", "rank"),)
 
 
-class ReadingRecord(Base):
+class ReadingRecord(ReadingInvariantColumns, Base):
     """A reading: same lattice and same (alpha, beta), places typed (docs/theory/isomorphism.md).
 
     A class has one or two readings; reading-level properties depend on which place kind is
@@ -213,18 +304,8 @@ class ReadingRecord(Base):
     beta: Mapped[int] = mapped_column(Integer)
     lattice_g: Mapped[int] = mapped_column(Integer)
     lattice_r: Mapped[int] = mapped_column(Integer)
-    processes: Mapped[int] = mapped_column(Integer)
-    regular: Mapped[bool] = mapped_column(Boolean)
-    slowness_num: Mapped[int] = mapped_column(Integer)
-    slowness_den: Mapped[int] = mapped_column(Integer)
-    forward_count: Mapped[int] = mapped_column(Integer)
-    forward_length: Mapped[int] = mapped_column(Integer)
-    forward_tokens: Mapped[int] = mapped_column(Integer)
-    backward_count: Mapped[int] = mapped_column(Integer)
-    backward_length: Mapped[int] = mapped_column(Integer)
-    backward_tokens: Mapped[int] = mapped_column(Integer)
-    nf_beta_delta: Mapped[str] = mapped_column(Text)  # C(a,b,c,d), docs/theory/normal-forms.md
-    nf_alpha_gamma: Mapped[str] = mapped_column(Text)
+    # The invariant columns (processes, ..., normal forms) come from the registry of invariants
+    # through ReadingInvariantColumns.
 
     class_record: Mapped[ClassRecord] = relationship(back_populates="readings")
     members: Mapped[list[ParameterSetRecord]] = relationship(
