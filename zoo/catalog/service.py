@@ -68,6 +68,7 @@ __all__ = [
 MAX_BUILD_AREA = 2_000
 #: The area up to which ``zoo find`` builds a catalog when none exists yet (issue 3).
 DEFAULT_MAX_AREA = 100
+_HTML_ROWS = 50  # rows a notebook shows of a result
 _CHUNK = 900  # bound parameters per IN (...) list, below SQLite's historical limit of 999
 
 _TABLES = Base.metadata.tables
@@ -128,6 +129,72 @@ class FindResult:
     #: CSV): class-level fields as their JSON value (int, bool, "num/den"), reading- and
     #: parameter-level fields as the sorted list of distinct values over the class's members.
     values: tuple[dict[str, object], ...] = ()
+
+    # A result is the sequence of its entries: ``result[0]``, ``len(result)``, ``for e in result``.
+    def __len__(self) -> int:
+        return len(self.entries)
+
+    def __iter__(self) -> Iterator[ClassEntry]:
+        return iter(self.entries)
+
+    def __getitem__(self, index: int) -> ClassEntry:
+        return self.entries[index]
+
+    def to_pandas(self) -> Any:
+        """The entries as a ``pandas.DataFrame``, one row per class, indexed by identifier:
+        label, area, then every class and frame invariant by registry name, with exact values
+        (Python ``int`` of any size, ``fractions.Fraction``, ``bool``; object columns where
+        a value does not fit a machine type). Needs pandas (``pip install pandas``)."""
+        try:
+            import pandas as pd
+        except ModuleNotFoundError:
+            raise CatalogError(
+                "FindResult.to_pandas needs pandas, which is not installed; install it with: "
+                "pip install pandas"
+            ) from None
+        names = [
+            inv.name
+            for inv in registry.INVARIANTS
+            if inv.level in (registry.Level.CLASS, registry.Level.FRAME) and not inv.structural
+        ]
+        rows = [
+            {"id": e.id, "label": e.label, "area": e.area}
+            | {name: e.invariant_values.get(name) for name in names}
+            for e in self.entries
+        ]
+        frame = pd.DataFrame(rows, columns=["id", "label", "area", *names], dtype=object)
+        frame = frame.set_index("id")
+        frame.attrs["query"] = self.query
+        frame.attrs["complete_to"] = self.complete_to
+        frame.attrs["note"] = self.completeness_note()
+        return frame
+
+    def _repr_html_(self) -> str:
+        """The first rows as an HTML table with the completeness note, for notebooks."""
+        import html
+
+        shown = self.entries[:_HTML_ROWS]
+        head = "".join(f"<th>{h}</th>" for h in ("id", "label", "area", "members", "loop"))
+        body = "".join(
+            "<tr>"
+            + "".join(
+                f"<td>{html.escape(str(v))}</td>"
+                for v in (e.id, e.label, e.area, len(e.members), e.invariant_values.get("loop"))
+            )
+            + "</tr>"
+            for e in shown
+        )
+        more = (
+            f"<p>{len(self.entries) - len(shown):,} more rows (index the result to see them).</p>"
+            if len(self.entries) > len(shown)
+            else ""
+        )
+        count = "1 class matches" if self.total == 1 else f"{self.total:,} classes match"
+        return (
+            f"<p>{html.escape(count)} <code>{html.escape(self.query)}</code></p>"
+            f"<table><tr>{head}</tr>{body}</table>{more}"
+            f"<p>{html.escape(self.completeness_note())}</p>"
+        )
 
     def cell(self, index: int, name: str) -> str:
         """The typed value of a requested field as CSV text (``column_cell``)."""

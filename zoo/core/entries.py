@@ -12,6 +12,7 @@ so that code written for the JSON object reads the typed value alike.
 
 from __future__ import annotations
 
+import html
 from collections.abc import Iterator, Mapping
 from dataclasses import dataclass, field
 from fractions import Fraction
@@ -20,7 +21,7 @@ from types import MappingProxyType
 from typing import Any
 
 from zoo.core import registry
-from zoo.core.params import ParameterSet
+from zoo.core.params import ParameterSet, parse_params
 from zoo.core.registry import Level, Value
 
 _EMPTY: Mapping[str, Value] = MappingProxyType({})
@@ -51,6 +52,31 @@ def json_values(
         if isinstance(value, Fraction):
             out[f"{inv.key}_float"] = float(value)
     return out
+
+
+def value_text(value: object) -> str:
+    """A value as a reader sees it: yes/no, exact fractions as p/q, digits grouped; integers
+    longer than 40 digits shortened to their first and last digits and their length."""
+    if isinstance(value, bool):
+        return "yes" if value else "no"
+    if isinstance(value, Fraction):
+        return str(value.numerator) if value.denominator == 1 else str(value)
+    if isinstance(value, int):
+        digits = str(abs(value))
+        if len(digits) <= 40:
+            return f"{value:,}"
+        return f"{'-' if value < 0 else ''}{digits[:6]}...{digits[-6:]} ({len(digits):,} digits)"
+    return str(value)
+
+
+def html_table(caption: str, rows: list[tuple[str, str]]) -> str:
+    """A two-column HTML table (name, value), escaped, for notebooks (``_repr_html_``)."""
+    body = "".join(
+        f"<tr><th style='text-align:left'>{html.escape(name)}</th>"
+        f"<td style='text-align:left'>{html.escape(text)}</td></tr>"
+        for name, text in rows
+    )
+    return f"<table><caption>{html.escape(caption)}</caption>{body}</table>"
 
 
 _READING = (Level.READING,)
@@ -154,6 +180,31 @@ class ClassEntry:
     def invariants(self) -> dict[str, object]:
         """The class-level invariants keyed and written as in the JSON (``zoo show ID``)."""
         return json_values(_CLASS, self.invariant_values, self.area)
+
+    @property
+    def params(self) -> ParameterSet:
+        """The class label as a parameter set (the smallest member)."""
+        return parse_params(self.label)
+
+    def to_networkx(self) -> Any:
+        """The explicit net of the class label (``ParameterSet.to_networkx``)."""
+        return self.params.to_networkx()
+
+    def _repr_html_(self) -> str:
+        """The entry as a table in a notebook: every class and frame invariant by its label."""
+        rows = [("label", self.label), ("frame", self.frame_id)]
+        for inv in registry.INVARIANTS:
+            if inv.level in _CLASS and not inv.structural and inv.name in self.invariant_values:
+                rows.append((inv.label, value_text(self.invariant_values[inv.name])))
+        for reading in self.readings:
+            values = ", ".join(
+                f"{inv.name} {value_text(reading.invariant_values[inv.name])}"
+                for inv in registry.of_level(Level.READING)
+                if inv.name in ("processes", "regular", "slowness")
+                and inv.name in reading.invariant_values
+            )
+            rows.append((f"reading {reading.label}", values))
+        return html_table(f"{self.id} = {self.label}, area {self.area}", rows)
 
     def as_dict(self) -> dict[str, object]:
         """A JSON-ready dict: id, label, area, members first, then every invariant."""

@@ -273,7 +273,12 @@ def to_networkx(graph: MarkedGraph) -> nx.DiGraph:
 
     Every node has ``kind`` ("transition" or "place"); places have ``tokens``. For a cycloid net
     transitions also carry ``coordinates`` (xi, eta) and places ``direction`` ("forward" or
-    "backward").
+    "backward"). The graph attribute ``marking`` lists the marked places; a cycloid net also
+    carries ``params`` (alpha, beta, gamma, delta) and ``label`` (``C(4,2,2,3)``).
+
+    >>> g = to_networkx(build_net(ParameterSet(4, 2, 2, 3)))
+    >>> g.graph["label"], g.graph["params"], len(g.graph["marking"])
+    ('C(4,2,2,3)', (4, 2, 2, 3), 6)
     """
     import networkx as nx
 
@@ -281,6 +286,12 @@ def to_networkx(graph: MarkedGraph) -> nx.DiGraph:
         raise FormatError(f"to_networkx needs a MarkedGraph, got {type(graph).__name__}")
     result = nx.DiGraph()
     cycloid = graph if isinstance(graph, CycloidNet) else None
+    result.graph["marking"] = tuple(
+        name for name, tokens in zip(graph.places, graph.tokens, strict=True) if tokens
+    )
+    if cycloid is not None:
+        result.graph["params"] = cycloid.params.as_tuple()
+        result.graph["label"] = str(cycloid.params)
     for i, name in enumerate(graph.transitions):
         if cycloid is not None:
             result.add_node(name, kind="transition", coordinates=cycloid.coordinates[i])

@@ -7,7 +7,9 @@ researcher types: ``4,2,2,3``, ``4 2 2 3`` and ``C(4,2,2,3)``.
 from __future__ import annotations
 
 import re
+from collections.abc import Callable
 from dataclasses import dataclass
+from typing import Any
 
 from zoo.errors import ParameterError
 
@@ -15,6 +17,11 @@ from zoo.errors import ParameterError
 #: closed formulas slow down: the reachable-state count of C(50000,50000,1,1) already has 30,101
 #: digits (0.1 s); at area 10^6 it takes seconds (measured).
 MAX_AREA = 100_000
+
+#: Operations on a parameter set that live above this module (the explicit net, the pictures).
+#: The package interface (zoo/__init__.py, which Python loads before any zoo module) installs
+#: them, so that this module stays at the bottom of the import graph.
+EXTENSIONS: dict[str, Callable[[ParameterSet], Any]] = {}
 
 _FORM = re.compile(r"^\s*(?:[cC]\s*\(\s*(?P<inner>[^()]*)\)|(?P<bare>[^()]*))\s*$")
 _INTEGER = re.compile(r"[+-]?[0-9]+")
@@ -75,6 +82,18 @@ class ParameterSet:
 
     def __str__(self) -> str:
         return f"C({self.alpha},{self.beta},{self.gamma},{self.delta})"
+
+    def to_networkx(self) -> Any:
+        """The explicit net of C(self) as a ``networkx.DiGraph``: transition and place nodes,
+        tokens on the places, and the graph attributes ``params``, ``label`` and ``marking``
+        (``zoo.core.net.to_networkx``)."""
+        return EXTENSIONS["to_networkx"](self)
+
+    def _repr_svg_(self) -> str | None:
+        """The fundamental parallelogram as SVG, so that a notebook shows a parameter set
+        (None, so no picture, when the drawing is refused, e.g. beyond the picture limit)."""
+        draw = EXTENSIONS.get("svg")
+        return None if draw is None else draw(self)
 
     @classmethod
     def parse(cls, text: str) -> ParameterSet:
