@@ -699,11 +699,12 @@ def test_draw_refuses_unknown_suffixes(tmp_path: Path) -> None:
 def test_quick_lookup_agrees_with_the_catalog_service(area16_catalog: str) -> None:
     from zoo.catalog.enumeration import iter_parameter_sets
     from zoo.catalog.service import Catalog, lookup_class_id
-    from zoo.cli.quicklookup import head_revision_of_migrations, quick_class_id
     from zoo.core.params import ParameterSet
     from zoo.storage.database import head_revision
+    from zoo.storage.quicklookup import quick_class_id
+    from zoo.storage.schema import SCHEMA_HEAD
 
-    assert head_revision_of_migrations() == head_revision()  # Alembic's own answer
+    assert SCHEMA_HEAD == head_revision()  # the committed head is Alembic's own answer
     catalog_file = Path(area16_catalog)
     with Catalog.open(area16_catalog) as catalog:
         for area in range(1, 18):  # area 17 is not stored: both say None
@@ -719,8 +720,8 @@ def test_quick_lookup_leaves_an_outdated_catalog_to_the_service(tmp_path: Path) 
     import shutil
     import sqlite3
 
-    from zoo.cli.quicklookup import UNANSWERED, quick_class_id
     from zoo.core.params import ParameterSet
+    from zoo.storage.quicklookup import UNANSWERED, quick_class_id
 
     db = tmp_path / "old.sqlite3"
     built = runner.invoke(app, ["build", "--max-area", "4", "--jobs", "1", "--db", str(db)])

@@ -19,21 +19,17 @@ import os
 import time
 from collections.abc import Iterator, Sequence
 from dataclasses import dataclass, field
-from datetime import UTC, datetime
 from typing import Protocol
 
-from sqlalchemy import Table, delete, select, update
-from sqlalchemy.engine import Connection
-from sqlalchemy.exc import IntegrityError, OperationalError
-
 from zoo.catalog import service as catalog_service
-from zoo.catalog.classify import AreaClassification, ClassSummary, classify_area
+from zoo.catalog.classify import AreaClassification, classify_area
 from zoo.catalog.enumeration import parameter_set_count
 from zoo.catalog.seeds import Seed, load_seed_directory
-from zoo.catalog.service import MAX_BUILD_AREA, AreaStats, Catalog, stored_class_id
+from zoo.catalog.service import MAX_BUILD_AREA, AreaStats, Catalog
 from zoo.errors import CatalogError, ParameterError
 from zoo.storage import database
-from zoo.storage.models import Base, stored_row
+from zoo.storage.convert import READING_ID_STRIDE, area_rows
+from zoo.storage.repository import StoreConflict
 from zoo.version import __version__
 
 __all__ = [
@@ -48,19 +44,6 @@ __all__ = [
     "ensure_catalog",
     "write_area",
 ]
-
-#: Readings get the explicit id area * READING_ID_STRIDE + index, so that the same build gives
-#: the same ids whatever was interrupted before (PostgreSQL sequences do not roll back).
-READING_ID_STRIDE = 100_000
-
-_TABLES = Base.metadata.tables
-_INFO = _TABLES["catalog_info"]
-_AREAS = _TABLES["areas"]
-_FRAMES = _TABLES["frames"]
-_CLASSES = _TABLES["classes"]
-_READINGS = _TABLES["readings"]
-_PARAMETER_SETS = _TABLES["parameter_sets"]
-_SEEDS = _TABLES["seeds"]
 
 
 @dataclass(frozen=True)
@@ -193,45 +176,24 @@ def _record_encoding(catalog: Catalog, max_area: int) -> None:
     """Record the fingerprint encoding and the build's bound; refuse to mix encodings."""
     from zoo.core.canonical import ENCODING_VERSION
 
-    with database.write_transaction(catalog.engine) as connection:
-        row = connection.execute(select(_INFO.c.value).where(_INFO.c.key == "encoding")).first()
-        if row is None:
-            connection.execute(_INFO.insert(), [{"key": "encoding", "value": ENCODING_VERSION}])
-        elif row[0] != ENCODING_VERSION:
+    with catalog.repository.write() as writer:
+        stored = writer.info().get("encoding")
+        if stored is None:
+            writer.put_info("encoding", ENCODING_VERSION)
+        elif stored != ENCODING_VERSION:
             raise CatalogError(
-                f"catalog {catalog.location} holds fingerprints of encoding {row[0]}, this zoo "
+                f"catalog {catalog.location} holds fingerprints of encoding {stored}, this zoo "
                 f"computes {ENCODING_VERSION}; build a new catalog with --db NEW_FILE "
                 "(mixing encodings would make fingerprints incomparable)"
             )
-        _put_info(connection, "built_by", __version__)
-        _put_info(connection, BUILD_TARGET_KEY, str(max_area))
+        writer.put_info("built_by", __version__)
+        writer.put_info(BUILD_TARGET_KEY, str(max_area))
 
 
 def _sync_seeds(catalog: Catalog, seeds: Sequence[Seed]) -> None:
     """Make the seeds table equal to the seed files, linking seeds of stored areas."""
-    table = _SEEDS
-    wanted = {s.name: s for s in seeds}
-    with database.write_transaction(catalog.engine) as connection:
-        stored = {row.name: row for row in connection.execute(select(table))}
-        gone = sorted(set(stored) - set(wanted))
-        if gone:
-            connection.execute(delete(table).where(table.c.name.in_(gone)))
-        for name, seed in wanted.items():
-            class_id = stored_class_id(connection, seed.params)
-            values = {
-                "name": name,
-                "description": seed.description,
-                "alpha": seed.params.alpha,
-                "beta": seed.params.beta,
-                "gamma": seed.params.gamma,
-                "delta": seed.params.delta,
-                "class_id": class_id,
-            }
-            old = stored.get(name)
-            if old is None:
-                connection.execute(table.insert(), [values])
-            elif any(getattr(old, k) != v for k, v in values.items()):
-                connection.execute(update(table).where(table.c.name == name).values(**values))
+    with catalog.repository.write() as writer:
+        writer.sync_seeds(seeds)
 
 
 def write_area(catalog: Catalog, result: AreaClassification, seeds: Sequence[Seed] = ()) -> bool:
@@ -243,109 +205,40 @@ def write_area(catalog: Catalog, result: AreaClassification, seeds: Sequence[See
     """
     started = time.perf_counter()
     area = result.area
+    rows = area_rows(result)
     try:
-        with database.write_transaction(catalog.engine) as connection:
-            row = connection.execute(select(_AREAS.c.complete).where(_AREAS.c.area == area)).first()
-            if row is not None and row[0]:
+        with catalog.repository.write() as writer:
+            state = writer.area_complete(area)
+            if state:
                 return False
-            if row is not None:  # an incomplete leftover: replace it whole
-                _delete_area(connection, area)
-            _insert_area_rows(connection, result)
+            if state is not None:  # an incomplete leftover: replace it whole
+                writer.delete_area(area)
+            writer.insert_area(rows)
             for seed in seeds:
-                connection.execute(
-                    update(_SEEDS)
-                    .where(_SEEDS.c.name == seed.name)
-                    .values(class_id=stored_class_id(connection, seed.params))
+                writer.link_seed(seed.name, seed.params)
+            writer.mark_area_complete(
+                AreaStats(
+                    area,
+                    result.parameter_set_count,
+                    result.reading_count,
+                    len(result.classes),
+                    len(result.frames),
+                    seconds=sum(result.seconds.values()) + (time.perf_counter() - started),
                 )
-            connection.execute(
-                _AREAS.insert(),
-                [
-                    {
-                        "area": area,
-                        "complete": True,
-                        "parameter_sets": result.parameter_set_count,
-                        "readings": result.reading_count,
-                        "classes": len(result.classes),
-                        "frames": len(result.frames),
-                        "built_at": datetime.now(UTC),
-                        "seconds": sum(result.seconds.values()) + (time.perf_counter() - started),
-                    }
-                ],
             )
-    except (IntegrityError, OperationalError) as exc:
+    except StoreConflict as exc:
         # Another build may have stored this area meanwhile; anything else is an error.
         if area in catalog.complete_areas():
             return False
-        if database.is_busy(exc):
+        if exc.busy:
             raise database.busy_error(catalog.location) from None
-        reason = str(getattr(exc, "orig", exc)).strip().splitlines()[0]
+        reason = exc.reason
         raise CatalogError(
             f"cannot store area {area} in catalog {catalog.location}: {reason}; nothing of "
             "this area was stored (if another build writes the same catalog, run one at a "
             "time, then build again to resume)"
         ) from None
     return True
-
-
-def _insert_area_rows(connection: Connection, result: AreaClassification) -> None:
-    """The rows of one area for frames, classes, readings and parameter_sets, bulk-inserted."""
-    frames: list[dict[str, object]] = [
-        {
-            "id": frame.id,
-            "area": frame.area,
-            "rank": frame.rank,
-            "label": str(frame.label),
-            "fingerprint": frame.fingerprint,
-            "lattice_g": frame.lattice_g,
-            "lattice_r": frame.lattice_r,
-            **stored_row("frames", frame.values),
-        }
-        for frame in result.frames
-    ]
-    classes = [_class_row(c) for c in result.classes]
-    readings: list[dict[str, object]] = []
-    parameter_sets: list[dict[str, object]] = []
-    index = 0
-    for summary in result.classes:
-        for reading in summary.readings:
-            index += 1
-            if index >= READING_ID_STRIDE:
-                raise CatalogError(
-                    f"area {result.area} has more than {READING_ID_STRIDE - 1} readings, "
-                    "more than the reading ids of this schema allow"
-                )
-            reading_id = result.area * READING_ID_STRIDE + index
-            readings.append(
-                {
-                    "id": reading_id,
-                    "class_id": summary.id,
-                    "area": result.area,
-                    "alpha": reading.alpha,
-                    "beta": reading.beta,
-                    "lattice_g": reading.lattice_g,
-                    "lattice_r": reading.lattice_r,
-                    **stored_row("readings", reading.values),
-                }
-            )
-            parameter_sets.extend(
-                {
-                    "alpha": p.alpha,
-                    "beta": p.beta,
-                    "gamma": p.gamma,
-                    "delta": p.delta,
-                    "area": result.area,
-                    "reading_id": reading_id,
-                    "class_id": summary.id,
-                }
-                for p in reading.members
-            )
-    for table, rows in (
-        (_FRAMES, frames),
-        (_CLASSES, classes),
-        (_READINGS, readings),
-        (_PARAMETER_SETS, parameter_sets),
-    ):
-        _bulk_insert(connection, table, rows)
 
 
 def ensure_catalog(
@@ -423,59 +316,3 @@ def _iter_classified(areas: Sequence[int], jobs: int) -> Iterator[AreaClassifica
     finally:
         pool.terminate()
         pool.join()
-
-
-def _bulk_insert(connection: Connection, table: Table, rows: list[dict[str, object]]) -> None:
-    """Insert many rows of the same keys; on SQLite straight through the driver's executemany.
-
-    Profiling the build showed SQLAlchemy's per-row parameter processing as most of the
-    writer's time on SQLite; the values here are plain ints, strings, bools and datetimes that
-    sqlite3 binds directly. Other databases take the ordinary SQLAlchemy path.
-    """
-    if not rows:
-        return
-    if connection.dialect.name != "sqlite":
-        connection.execute(table.insert(), rows)
-        return
-    keys = list(rows[0])
-    columns = ", ".join(f'"{key}"' for key in keys)
-    marks = ", ".join("?" for _ in keys)
-    connection.exec_driver_sql(
-        f'INSERT INTO "{table.name}" ({columns}) VALUES ({marks})',
-        [tuple(row[key] for key in keys) for row in rows],
-    )
-
-
-def _put_info(connection: Connection, key: str, value: str) -> None:
-    table = _INFO
-    if connection.execute(select(table.c.key).where(table.c.key == key)).first() is None:
-        connection.execute(table.insert(), [{"key": key, "value": value}])
-    else:
-        connection.execute(update(table).where(table.c.key == key).values(value=value))
-
-
-def _delete_area(connection: Connection, area: int) -> None:
-    connection.execute(
-        update(_SEEDS)
-        .where(_SEEDS.c.class_id.in_(select(_CLASSES.c.id).where(_CLASSES.c.area == area)))
-        .values(class_id=None)
-    )
-    for table in (_PARAMETER_SETS, _READINGS, _CLASSES, _FRAMES, _AREAS):
-        connection.execute(delete(table).where(table.c.area == area))
-
-
-def _class_row(c: ClassSummary) -> dict[str, object]:
-    label = c.label
-    return {
-        "id": c.id,
-        "area": c.area,
-        "rank": c.rank,
-        "label": str(label),
-        "label_alpha": label.alpha,
-        "label_beta": label.beta,
-        "label_gamma": label.gamma,
-        "label_delta": label.delta,
-        "frame_id": c.frame_id,
-        "fingerprint": c.fingerprint,
-        **stored_row("classes", c.values),  # every class invariant of the registry
-    }

@@ -6,21 +6,18 @@
 
 from __future__ import annotations
 
-import os
 from collections.abc import Callable
 from functools import partial
-from pathlib import Path
 
 from zoo.catalog.service import Catalog
 from zoo.core.params import ParameterSet
 from zoo.errors import CatalogError
 from zoo.storage.database import (
-    CATALOG_ENV_VAR,
     catalog_exists,
-    default_catalog_path,
     display_location,
     resolve_location,
 )
+from zoo.storage.location import catalog_file
 
 
 def _missing_catalog_file(location: str | None) -> str | None:
@@ -29,11 +26,8 @@ def _missing_catalog_file(location: str | None) -> str | None:
     Checked before ``resolve_location``, which creates the parent folder of a SQLite file:
     identification only reads, so it must not leave folders behind either.
     """
-    value = (location or "").strip() or os.environ.get(CATALOG_ENV_VAR, "").strip()
-    if "://" in value:
-        return None
-    path = Path(value).expanduser() if value else default_catalog_path()
-    return None if path.is_file() else f"no catalog at {path.absolute()}"
+    path = catalog_file(location)
+    return None if path is None or path.is_file() else f"no catalog at {path}"
 
 
 def catalog_status(
@@ -87,3 +81,6 @@ def _status(
 
 
 __all__ = ["catalog_lookup", "catalog_status"]
+
+
+__all__ = ["catalog_file", "catalog_lookup", "catalog_status"]

@@ -21,32 +21,20 @@ import json
 import shlex
 from collections.abc import Iterable, Iterator, Sequence
 from dataclasses import dataclass
-from fractions import Fraction
-from functools import partial
 from pathlib import Path
 from types import TracebackType
-from typing import Any
-
-from sqlalchemy import Engine, and_, func, or_, select
-from sqlalchemy.engine import Connection
+from typing import TYPE_CHECKING, Any
 
 from zoo.catalog.identifiers import Identifier, read_identifier
 from zoo.core import registry
-from zoo.core.entries import ClassEntry, FrameEntry, ReadingEntry, SeedEntry, frozen_values
-from zoo.core.params import MAX_AREA, ParameterSet, parse_params
+from zoo.core.entries import AreaStats, ClassEntry, FrameEntry, ReadingEntry, SeedEntry
+from zoo.core.params import ParameterSet, parse_params
 from zoo.errors import CatalogError, NotInCatalog, ParameterError
 from zoo.storage import database
-from zoo.storage.models import (
-    AreaRecord,
-    Base,
-    CatalogInfo,
-    ClassRecord,
-    FrameRecord,
-    ParameterSetRecord,
-    ReadingRecord,
-    SeedRecord,
-    loaded_values,
-)
+from zoo.storage.repository import Repository
+
+if TYPE_CHECKING:
+    from zoo.storage.database import Engine
 
 __all__ = [
     "DEFAULT_MAX_AREA",
@@ -60,7 +48,6 @@ __all__ = [
     "build_command",
     "column_cell",
     "extend_advice",
-    "stored_class_id",
     "lookup_class_id",
 ]
 
@@ -69,48 +56,12 @@ MAX_BUILD_AREA = 2_000
 #: The area up to which ``zoo find`` builds a catalog when none exists yet (issue 3).
 DEFAULT_MAX_AREA = 100
 _HTML_ROWS = 50  # rows a notebook shows of a result
-_CHUNK = 900  # bound parameters per IN (...) list, below SQLite's historical limit of 999
-
-_TABLES = Base.metadata.tables
-_AREAS = _TABLES["areas"]
-_FRAMES = _TABLES["frames"]
-_CLASSES = _TABLES["classes"]
-_READINGS = _TABLES["readings"]
-_SEEDS = _TABLES["seeds"]
-#: The frame's stored invariants, joined to a class row as ``frame_<column>``.
-_FRAME_VALUE_COLUMNS = tuple(
-    _FRAMES.c[column].label(f"frame_{column}")
-    for inv in registry.stored_on("frames")
-    for column in inv.columns
-)
 
 
 # --- value types ---------------------------------------------------------------------------
 
 
 # Class, reading, frame and seed entries are the frozen typed values of zoo.core.entries.
-
-
-@dataclass(frozen=True)
-class AreaStats:
-    """Counts of one stored area."""
-
-    area: int
-    parameter_sets: int
-    readings: int
-    classes: int
-    frames: int
-    complete: bool = True
-    seconds: float | None = None
-
-    def as_dict(self) -> dict[str, object]:
-        return {
-            "area": self.area,
-            "parameter_sets": self.parameter_sets,
-            "readings": self.readings,
-            "classes": self.classes,
-            "frames": self.frames,
-        }
 
 
 @dataclass(frozen=True)
@@ -258,6 +209,7 @@ class Catalog:
 
     def __init__(self, engine: Engine, url: str, *, created: bool = False) -> None:
         self.engine = engine
+        self.repository = Repository(engine)
         self.url = url
         #: Whether this open created the catalog (``create=True`` on a missing one).
         self.created = created
@@ -265,12 +217,15 @@ class Catalog:
     # lifecycle
 
     @classmethod
-    def open(cls, location: str | None = None, *, create: bool = False) -> Catalog:
+    def open(
+        cls, location: str | None = None, *, create: bool = False, read_only: bool = False
+    ) -> Catalog:
         """Open the catalog at location (``--db`` value, else $ZOO_CATALOG, else the default).
 
         With ``create=True`` a missing catalog is created empty (schema by Alembic); without it
         a missing catalog is a ``CatalogError`` naming the build command. A catalog with an
-        older schema is refused with the exact ``zoo migrate`` command.
+        older schema is refused with the exact ``zoo migrate`` command. ``read_only=True``
+        makes every connection refuse writes (the web catalog).
         """
         url = database.resolve_location(location)
         if not database.catalog_exists(url):
@@ -284,7 +239,7 @@ class Catalog:
             created = True
         else:
             created = False
-        engine = database.open_engine(url)
+        engine = database.open_engine(url, read_only=read_only)
         try:
             database.require_current(engine)
         except CatalogError:
@@ -332,13 +287,8 @@ class Catalog:
     # completeness and facts
 
     def complete_areas(self) -> list[int]:
-        with self.engine.connect() as connection:
-            rows = connection.execute(
-                select(AreaRecord.area)
-                .where(AreaRecord.complete.is_(True))
-                .order_by(AreaRecord.area)
-            )
-            return [row[0] for row in rows]
+        with self.repository.read() as reader:
+            return reader.complete_areas()
 
     def complete_to(self) -> int:
         """The largest N such that areas 1..N are all stored completely (0 when empty)."""
@@ -346,43 +296,32 @@ class Catalog:
 
     def info(self) -> dict[str, str]:
         """The catalog_info table: versions, encoding, creation time."""
-        with self.engine.connect() as connection:
-            rows = connection.execute(select(CatalogInfo.key, CatalogInfo.value))
-            return {key: value for key, value in rows}
+        with self.repository.read() as reader:
+            return reader.info()
 
     # reading
 
     def stats(self) -> list[AreaStats]:
         """Counts per stored area, in increasing area."""
-        with self.engine.connect() as connection:
-            rows = connection.execute(select(_AREAS).order_by(AreaRecord.area))
-            return [
-                AreaStats(
-                    r.area, r.parameter_sets, r.readings, r.classes, r.frames, r.complete, r.seconds
-                )
-                for r in rows
-            ]
+        with self.repository.read() as reader:
+            return reader.area_stats()
 
     def class_for_params(self, p: ParameterSet) -> ClassEntry | None:
         """The entry of the class holding p, or None when p's area is not stored."""
-        with self.engine.connect() as connection:
-            class_id = stored_class_id(connection, p)
-            if class_id is None:
-                return None
-            return self._entries(connection, [class_id])[0]
+        with self.repository.read() as reader:
+            class_id = reader.class_id_for(p)
+            return None if class_id is None else reader.entries([class_id])[0]
 
     def class_id_for(self, p: ParameterSet) -> str | None:
         """The identifier of the class holding p, or None when p's area is not stored."""
-        with self.engine.connect() as connection:
-            return stored_class_id(connection, p)
+        with self.repository.read() as reader:
+            return reader.class_id_for(p)
 
     def class_for_fingerprint(self, fingerprint: str) -> ClassEntry | None:
         """The entry whose marked-net fingerprint (``v1:...``) is the given one, or None."""
-        with self.engine.connect() as connection:
-            row = connection.execute(
-                select(ClassRecord.id).where(ClassRecord.fingerprint == fingerprint)
-            ).first()
-            return None if row is None else self._entries(connection, [row[0]])[0]
+        with self.repository.read() as reader:
+            class_id = reader.class_id_with_fingerprint(fingerprint)
+            return None if class_id is None else reader.entries([class_id])[0]
 
     def get(self, ref: str) -> ClassEntry:
         """The class named by an identifier (``CY16-3``), its label or any member parameter set.
@@ -397,8 +336,8 @@ class Catalog:
                     f"{identifier} is a frame identifier, not a class; ask for the frame with "
                     f"zoo show {identifier}, or for a class such as CY{identifier.area}-1"
                 )
-            with self.engine.connect() as connection:
-                entries = self._entries(connection, [str(identifier)])
+            with self.repository.read() as reader:
+                entries = reader.entries([str(identifier)])
             if entries:
                 return entries[0]
             raise self._missing(identifier)
@@ -422,46 +361,24 @@ class Catalog:
                 f"{frame_id.strip()!r} is not a frame identifier; write FR{{area}}-{{rank}}, "
                 "e.g. FR16-1"
             )
-        with self.engine.connect() as connection:
-            row = connection.execute(
-                select(_FRAMES).where(FrameRecord.id == str(identifier))
-            ).first()
-            if row is None:
-                raise self._missing(identifier)
-            class_ids = [
-                r[0]
-                for r in connection.execute(
-                    select(ClassRecord.id)
-                    .where(ClassRecord.frame_id == row.id)
-                    .order_by(ClassRecord.rank)
-                )
-            ]
-        return FrameEntry(
-            id=row.id,
-            label=row.label,
-            area=row.area,
-            fingerprint=row.fingerprint,
-            lattice_key=(row.area, row.lattice_g, row.lattice_r),
-            class_ids=tuple(class_ids),
-            invariant_values=frozen_values(loaded_values("frames", row)),
-        )
+        with self.repository.read() as reader:
+            entry = reader.frame(str(identifier))
+        if entry is None:
+            raise self._missing(identifier)
+        return entry
 
     def seeds(self) -> list[SeedEntry]:
         """Every seed stored in the catalog, by name."""
-        with self.engine.connect() as connection:
-            rows = connection.execute(select(_SEEDS).order_by(SeedRecord.name))
-            return [_seed_entry(r) for r in rows]
+        with self.repository.read() as reader:
+            return reader.seeds()
 
     def _missing(self, identifier: Identifier) -> NotInCatalog:
         complete = self.complete_to()
         if identifier.area > complete and identifier.area not in self.complete_areas():
             return self._missing_area(identifier.area, str(identifier))
         kind = "classes" if identifier.kind == "class" else "frames"
-        table = _TABLES[kind]
-        with self.engine.connect() as connection:
-            count = connection.execute(
-                select(func.count()).select_from(table).where(table.c.area == identifier.area)
-            ).scalar_one()
+        with self.repository.read() as reader:
+            count = reader.stored_count(kind, identifier.area)
         return NotInCatalog(
             f"{identifier} does not exist: area {identifier.area} has {count} {kind}, "
             f"ranked 1..{count}"
@@ -497,16 +414,20 @@ class Catalog:
         if limit is not None and limit < 0:
             raise ParameterError(f"--limit must be zero or more, got {limit}")
         node = parse_query(query) if query.strip() else None
-        ids, total = _query_class_ids(self.engine, node, sort, limit, seed)
-        values = _column_values(self.engine, ids, columns or ())
-        typed = _typed_column_values(self.engine, ids, columns or ())
-        with self.engine.connect() as connection:
-            entries = self._entries(connection, ids)
+        names = _field_names(columns or ())
+        # One snapshot for the answer and the completeness it states: a build that stores an
+        # area meanwhile changes neither (issue: completeness overclaim under concurrency).
+        with self.repository.read() as reader:
+            ids, total = reader.query_class_ids(node, sort, limit, seed)
+            values = reader.column_texts(ids, names)
+            typed = reader.column_values(ids, names)
+            entries = reader.entries(ids)
+            complete_to = _complete_prefix(reader.complete_areas())
         return FindResult(
             query=query,
             entries=tuple(entries),
             total=total,
-            complete_to=self.complete_to(),
+            complete_to=complete_to,
             area_bound=None if node is None else referenced_area_bound(node),
             columns=tuple(values.get(e.id, {}) for e in entries),
             location=self.url,
@@ -526,7 +447,8 @@ class Catalog:
         from zoo.query.parser import parse_query
 
         node = parse_query(query) if query.strip() else None
-        return _query_count(self.engine, node, seed)
+        with self.repository.read() as reader:
+            return reader.query_count(node, seed)
 
     def iter_entries(
         self, areas: Iterable[int] | None = None, *, batch_size: int = 500
@@ -540,90 +462,16 @@ class Catalog:
         """
         if isinstance(batch_size, bool) or not isinstance(batch_size, int) or batch_size < 1:
             raise ParameterError(f"batch_size must be a positive whole number, got {batch_size!r}")
-        classes = _CLASSES
         for area in [None] if areas is None else areas:
             after = (0, 0)  # (area, rank) of the last entry yielded; ranks start at 1
             while True:
-                statement = select(classes.c.id, classes.c.area, classes.c.rank).where(
-                    # (area, rank) > after, written so that an index on (area, rank) serves it
-                    classes.c.area >= after[0],
-                    or_(classes.c.area > after[0], classes.c.rank > after[1]),
-                )
-                if area is not None:
-                    statement = statement.where(classes.c.area == area)
-                statement = statement.order_by(classes.c.area, classes.c.rank).limit(batch_size)
-                with self.engine.connect() as connection:
-                    rows = connection.execute(statement).all()
-                    entries = self._entries(connection, [row.id for row in rows])
+                with self.repository.read() as reader:
+                    rows = reader.class_page(area, after, batch_size)
+                    entries = reader.entries([row.id for row in rows])
                 yield from entries
                 if len(rows) < batch_size:
                     break
                 after = (rows[-1].area, rows[-1].rank)
-
-    def _entries(self, connection: Connection, ids: Sequence[str]) -> list[ClassEntry]:
-        """Load whole entries for class ids, in the order given (missing ids are skipped)."""
-        if not ids:
-            return []
-        classes: dict[str, Any] = {}
-        readings: dict[str, list[Any]] = {}
-        members_of_reading: dict[int, list[tuple[int, int, int, int]]] = {}
-        seeds: dict[str, list[SeedEntry]] = {}
-        for chunk in _chunks(list(ids)):
-            for row in connection.execute(
-                select(_CLASSES, *_FRAME_VALUE_COLUMNS)
-                .join(_FRAMES, _FRAMES.c.id == _CLASSES.c.frame_id)
-                .where(_CLASSES.c.id.in_(chunk))
-            ):
-                classes[row.id] = row
-            for row in connection.execute(
-                select(_READINGS)
-                .where(ReadingRecord.class_id.in_(chunk))
-                .order_by(ReadingRecord.id)
-            ):
-                readings.setdefault(row.class_id, []).append(row)
-            for alpha, beta, gamma, delta, reading_id in connection.execute(
-                select(
-                    ParameterSetRecord.alpha,
-                    ParameterSetRecord.beta,
-                    ParameterSetRecord.gamma,
-                    ParameterSetRecord.delta,
-                    ParameterSetRecord.reading_id,
-                ).where(ParameterSetRecord.class_id.in_(chunk))
-            ):
-                members_of_reading.setdefault(reading_id, []).append((alpha, beta, gamma, delta))
-            for row in connection.execute(select(_SEEDS).where(SeedRecord.class_id.in_(chunk))):
-                seeds.setdefault(row.class_id, []).append(_seed_entry(row))
-        entries: list[ClassEntry] = []
-        for class_id in ids:
-            class_row = classes.get(class_id)
-            if class_row is None:
-                continue
-            row = class_row
-            ordered: list[tuple[tuple[int, int, int, int], ReadingEntry]] = []
-            members: list[ParameterSet] = []
-            for reading in readings.get(class_id, []):
-                values = sorted(members_of_reading.get(reading.id, []))
-                reading_members = [ParameterSet(*v) for v in values]
-                members.extend(reading_members)
-                first = values[0] if values else (MAX_AREA, 0, 0, 0)
-                ordered.append((first, _reading_entry(reading, reading_members)))
-            ordered.sort(key=lambda pair: pair[0])
-            entries.append(
-                ClassEntry(
-                    id=row.id,
-                    label=row.label,
-                    area=row.area,
-                    frame_id=row.frame_id,
-                    fingerprint=row.fingerprint,
-                    members=tuple(sorted(members)),
-                    readings=tuple(r for _, r in ordered),
-                    invariant_values=frozen_values(
-                        {**loaded_values("classes", row), **loaded_values("frames", row, "frame_")}
-                    ),
-                    seeds=tuple(sorted(seeds.get(class_id, []), key=lambda s: s.name)),
-                )
-            )
-        return entries
 
 
 def describe_location(location: str | None = None) -> tuple[str, bool]:
@@ -656,29 +504,10 @@ def lookup_class_id(p: ParameterSet, location: str | None = None) -> str | None:
     engine = database.open_engine(url)
     try:
         database.require_current(engine)
-        with engine.connect() as connection:
-            return stored_class_id(connection, p)
+        with Repository(engine).read() as reader:
+            return reader.class_id_for(p)
     finally:
         engine.dispose()
-
-
-def stored_class_id(connection: Connection, p: ParameterSet) -> str | None:
-    """The identifier of p's class over an open connection, None when p's area is not stored.
-
-    The one query from a parameter set to its class; a build calls it inside its own write
-    transaction (``zoo.catalog.build``), where a fresh connection would not see the area yet.
-    """
-    row = connection.execute(
-        select(ParameterSetRecord.class_id).where(
-            and_(
-                ParameterSetRecord.alpha == p.alpha,
-                ParameterSetRecord.beta == p.beta,
-                ParameterSetRecord.gamma == p.gamma,
-                ParameterSetRecord.delta == p.delta,
-            )
-        )
-    ).first()
-    return None if row is None else str(row[0])
 
 
 def _complete_prefix(areas: Iterable[int]) -> int:
@@ -689,184 +518,11 @@ def _complete_prefix(areas: Iterable[int]) -> int:
     return n
 
 
-def _fraction_text(numerator: int, denominator: int) -> str:
-    value = Fraction(numerator, denominator)
-    return f"{value.numerator}/{value.denominator}"
-
-
-def _reading_entry(row: Any, members: list[ParameterSet]) -> ReadingEntry:
-    return ReadingEntry(
-        alpha=row.alpha,
-        beta=row.beta,
-        lattice_key=(row.area, row.lattice_g, row.lattice_r),
-        members=tuple(members),
-        invariant_values=frozen_values(loaded_values("readings", row)),
-    )
-
-
-def _seed_entry(row: Any) -> SeedEntry:
-    return SeedEntry(
-        name=row.name,
-        description=row.description,
-        params=ParameterSet(row.alpha, row.beta, row.gamma, row.delta),
-        class_id=row.class_id,
-    )
-
-
-def _chunks(values: list[str]) -> Iterator[list[str]]:
-    for start in range(0, len(values), _CHUNK):
-        yield values[start : start + _CHUNK]
-
-
-# --- queries (through zoo.storage.querysql) ------------------------------------------------
-
-
-def _matching_statement(node: Any, seed: str | None) -> Any:
-    """``SELECT classes.id`` of the classes matching a query tree and a seed-name filter."""
-    from zoo.storage.querysql import compile_query
-
-    classes = _CLASSES
-    statement = compile_query(node) if node is not None else select(classes.c.id)
-    if seed is not None:
-        seeds = _SEEDS
-        needle = seed.strip().lower()
-        statement = statement.where(
-            classes.c.id.in_(
-                select(seeds.c.class_id).where(
-                    seeds.c.class_id.is_not(None), func.lower(seeds.c.name).contains(needle)
-                )
-            )
-        )
-    return statement
-
-
-def _query_class_ids(
-    engine: Engine, node: Any, sort: str | None, limit: int | None, seed: str | None
-) -> tuple[list[str], int]:
-    from zoo.storage.querysql import sort_clause
-
-    classes = _CLASSES
-    statement = _matching_statement(node, seed)
-    order = sort_clause(sort) if sort else (classes.c.area.asc(), classes.c.rank.asc())
-    with engine.connect() as connection:
-        if limit is None:
-            ids = [row[0] for row in connection.execute(statement.order_by(*order))]
-            return ids, len(ids)
-        if limit == 0:
-            total = connection.execute(
-                select(func.count()).select_from(statement.subquery())
-            ).scalar_one()
-            return [], int(total)
-        # One pass: the window count is taken over every match before LIMIT applies.
-        rows = connection.execute(
-            statement.add_columns(func.count().over().label("total")).order_by(*order).limit(limit)
-        ).all()
-        return [row[0] for row in rows], int(rows[0][1]) if rows else 0
-
-
-def _query_count(engine: Engine, node: Any, seed: str | None) -> int:
-    statement = _matching_statement(node, seed)
-    with engine.connect() as connection:
-        return int(
-            connection.execute(select(func.count()).select_from(statement.subquery())).scalar_one()
-        )
-
-
-def _column_values(
-    engine: Engine, ids: Sequence[str], columns: Sequence[str]
-) -> dict[str, dict[str, str | None]]:
-    """The requested fields of each class as text (``3``, ``1/3``, ``yes``, ``1..2``)."""
-    from zoo.query.parser import parse_field_names
-    from zoo.storage.querysql import column_clauses
-
-    names: list[str] = []
-    for column in columns:
-        names.extend(parse_field_names(column))
-    classes = _CLASSES
-    values: dict[str, dict[str, str | None]] = {}
-    if not ids or not names:
-        return {class_id: {} for class_id in ids}
-    labels = column_clauses(names)
-    with engine.connect() as connection:
-        for chunk in _chunks(list(ids)):
-            for row in connection.execute(
-                select(classes.c.id, *labels).where(classes.c.id.in_(chunk))
-            ):
-                mapping = row._mapping
-                values[row.id] = {label.name: mapping[label.name] for label in labels}
-    return values
-
-
-def _typed_value(field: Any, raw: Sequence[Any]) -> object:
-    """A stored field value (its columns, in ``Field.columns`` order) as its JSON value."""
-    from zoo.query.fields import FieldType
-
-    if raw[0] is None:
-        return None
-    if field.type is FieldType.BOOLEAN:
-        return bool(raw[0])
-    if field.type is FieldType.FRACTION:
-        return _fraction_text(raw[0], raw[1])
-    return int(raw[0])  # INTEGER, and BIG_INTEGER from its exact decimal text
-
-
-def _sort_key(field: Any, value: object) -> Any:
-    from zoo.query.fields import FieldType
-
-    if field.type is FieldType.FRACTION and isinstance(value, str):
-        return Fraction(value)
-    return value
-
-
-def _typed_column_values(
-    engine: Engine, ids: Sequence[str], columns: Sequence[str]
-) -> dict[str, dict[str, object]]:
-    """The requested fields of each class as typed values (see ``FindResult.values``).
-
-    Class-level fields give one value; reading- and parameter-level fields give every distinct
-    value over the class's readings or parameter sets, sorted, always as a list (even of one),
-    so that a reader of JSON sees one type per column.
-    """
-    from zoo.query.fields import require_field
+def _field_names(columns: Sequence[str]) -> list[str]:
+    """The field names of ``--columns`` values (each may list several), without repeats."""
     from zoo.query.parser import parse_field_names
 
     names: list[str] = []
     for column in columns:
         names.extend(n for n in parse_field_names(column) if n not in names)
-    result: dict[str, dict[str, object]] = {class_id: {} for class_id in ids}
-    if not ids or not names:
-        return result
-    with engine.connect() as connection:
-        for name in names:
-            field = require_field(name)
-            table_name = next(iter(field.tables))
-            table = _TABLES[table_name]
-            stored = [table.c[spec.partition(".")[2]] for spec in field.columns]
-            per_class = table_name in ("classes", "frames")
-            for chunk in _chunks(list(ids)):
-                if table_name == "frames":
-                    statement = select(_CLASSES.c.id, *stored).join(
-                        _FRAMES, _FRAMES.c.id == _CLASSES.c.frame_id
-                    )
-                    owner = _CLASSES.c.id
-                elif table_name == "classes":
-                    statement = select(_CLASSES.c.id, *stored)
-                    owner = _CLASSES.c.id
-                else:
-                    owner = table.c.class_id
-                    statement = select(owner, *stored).distinct()
-                for row in connection.execute(statement.where(owner.in_(chunk))):
-                    value = _typed_value(field, tuple(row)[1:])
-                    if per_class:
-                        result[row[0]][field.name] = value
-                    else:
-                        listed = result[row[0]].setdefault(field.name, [])
-                        assert isinstance(listed, list)
-                        if value not in listed:
-                            listed.append(value)
-            if not per_class:
-                for class_values in result.values():
-                    listed = class_values.setdefault(field.name, [])
-                    assert isinstance(listed, list)
-                    listed.sort(key=partial(_sort_key, field))
-    return result
+    return names

@@ -8,7 +8,6 @@ behaves the same everywhere. Errors go through ``zoo.cli.app.fail``.
 from __future__ import annotations
 
 import json
-import os
 import re
 import sys
 from collections.abc import Iterable, Sequence
@@ -136,48 +135,17 @@ def resolve_params(ref: str, db: str | None) -> ParameterSet:
     return parse_params(entry.label)
 
 
-def _catalog_file(db: str | None) -> Path | None:
-    """The catalog file named by --db, $ZOO_CATALOG or the default (docs/architecture.md).
-
-    None for a database URL (``://``), which only the catalog service can open.
-    """
-    location = (db or "").strip() or os.environ.get("ZOO_CATALOG", "").strip()
-    if "://" in location:
-        return None
-    if location:
-        return Path(location).expanduser()
-    import platformdirs
-
-    return Path(platformdirs.user_data_dir("zoo")) / "catalog.sqlite3"
-
-
 def class_id_of(p: ParameterSet, db: str | None) -> str | None:
     """The catalog identifier of the class of p, or None; never builds a catalog.
 
-    Importing the catalog service pulls in SQLAlchemy and Alembic (about half a second), so
-    without a catalog file nothing is imported, and a current SQLite catalog is asked through
-    the light path of ``zoo.cli.quicklookup``; only a URL or a file that path cannot vouch for
-    goes through ``zoo.catalog.service.lookup_class_id``. An unreadable or outdated catalog must not
-    hide what needs no catalog: its error becomes a note on standard error and the identifier
-    is None.
+    A local catalog of the current schema is asked without loading the database stack
+    (``zoo.catalog.quicklookup``). An unreadable or outdated catalog must not hide what needs
+    no catalog: its error becomes a note on standard error and the identifier is None.
     """
-    catalog_file = _catalog_file(db)
-    if catalog_file is not None:
-        if not catalog_file.exists():
-            return None
-        from zoo.cli.quicklookup import quick_class_id
+    from zoo.catalog.quicklookup import class_id_of as lookup
 
-        quick = quick_class_id(p, catalog_file)
-        if quick is None or isinstance(quick, str):
-            return quick
     try:
-        from zoo.catalog.service import lookup_class_id
-    except ModuleNotFoundError as exc:  # the catalog service is optional for these commands
-        if exc.name != "zoo.catalog.service":
-            raise
-        return None
-    try:
-        return lookup_class_id(p, db)
+        return lookup(p, db)
     except CatalogError as exc:
         typer.echo(f"Note: no catalog identifier: {exc}", err=True)
         return None

@@ -85,6 +85,28 @@ _FRAME = (Level.FRAME,)
 
 
 @dataclass(frozen=True)
+class AreaStats:
+    """Counts of one stored area."""
+
+    area: int
+    parameter_sets: int
+    readings: int
+    classes: int
+    frames: int
+    complete: bool = True
+    seconds: float | None = None
+
+    def as_dict(self) -> dict[str, object]:
+        return {
+            "area": self.area,
+            "parameter_sets": self.parameter_sets,
+            "readings": self.readings,
+            "classes": self.classes,
+            "frames": self.frames,
+        }
+
+
+@dataclass(frozen=True)
 class SeedEntry:
     """A named seed (seeds_data/) and the class it belongs to, if that area is stored."""
 

@@ -14,7 +14,6 @@ locked", and explicit ``BEGIN`` so that migrations run as real transactions.
 
 from __future__ import annotations
 
-import os
 import shlex
 import sqlite3
 from collections.abc import Iterator
@@ -24,7 +23,6 @@ from importlib.resources import files
 from pathlib import Path
 from typing import Any
 
-import platformdirs
 from alembic import command
 from alembic.config import Config
 from alembic.runtime.migration import MigrationContext
@@ -34,12 +32,15 @@ from sqlalchemy.engine import URL, make_url
 from sqlalchemy.exc import ArgumentError, DBAPIError, NoSuchModuleError, OperationalError
 
 from zoo.errors import CatalogError
+from zoo.storage.location import (
+    CATALOG_ENV_VAR,
+    DEFAULT_FILE_NAME,
+    chosen_location,
+    default_catalog_path,
+    is_url,
+)
 from zoo.storage.models import sortable_key
 
-#: The environment variable naming the catalog when ``--db`` is not given.
-CATALOG_ENV_VAR = "ZOO_CATALOG"
-#: File name of the default catalog inside ``platformdirs.user_data_dir("zoo")``.
-DEFAULT_FILE_NAME = "catalog.sqlite3"
 #: How long a SQLite connection waits for another writer before giving up, in milliseconds.
 SQLITE_BUSY_TIMEOUT_MS = 30_000
 
@@ -63,11 +64,6 @@ class SchemaChange:
 # --- location ------------------------------------------------------------------------------
 
 
-def default_catalog_path() -> Path:
-    """The default catalog file: ``platformdirs.user_data_dir("zoo") / "catalog.sqlite3"``."""
-    return Path(platformdirs.user_data_dir("zoo")) / DEFAULT_FILE_NAME
-
-
 def resolve_location(location: str | None = None) -> str:
     """The SQLAlchemy URL of the catalog: ``--db`` value, else ``$ZOO_CATALOG``, else the default.
 
@@ -78,8 +74,8 @@ def resolve_location(location: str | None = None) -> str:
     >>> resolve_location("postgresql://postgres@127.0.0.1/zoo")
     'postgresql+psycopg://postgres@127.0.0.1/zoo'
     """
-    value = (location or "").strip() or os.environ.get(CATALOG_ENV_VAR, "").strip()
-    if "://" in value:
+    value = chosen_location(location)
+    if is_url(value):
         url = _normalised_url(value)
         file = _sqlite_file(url)
         if file is not None:
@@ -160,9 +156,9 @@ def display_location(url: str | URL) -> str:
 def is_default_location(url: str | URL) -> bool:
     """Whether ``url`` is the catalog zoo opens when no ``--db`` is given ($ZOO_CATALOG, else
     the default file), so that a suggested command needs no ``--db``. Creates nothing."""
-    value = os.environ.get(CATALOG_ENV_VAR, "").strip()
     try:
-        if "://" in value:
+        value = chosen_location(None)
+        if is_url(value):
             default = _normalised_url(value)
         else:
             path = Path(value).expanduser() if value else default_catalog_path()
@@ -189,15 +185,16 @@ def migrate_command(url: str | URL) -> str:
 # --- engines -------------------------------------------------------------------------------
 
 
-def open_engine(url: str, *, migrating: bool = False) -> Engine:
+def open_engine(url: str, *, migrating: bool = False, read_only: bool = False) -> Engine:
     """An engine for the catalog at ``url`` (from ``resolve_location``), checked to connect.
 
     SQLite: foreign keys on per connection, WAL journal, busy timeout, explicit BEGIN (module
     docstring). ``migrating=True`` is for schema migrations only: foreign keys off, because
     rebuilding a table in SQLite batch mode drops it, which live foreign keys would refuse or
     cascade (``upgrade`` checks every key before committing instead), and ``BEGIN IMMEDIATE``,
-    so that the migration holds the write lock from its first statement. Raises
-    ``CatalogError`` when the database cannot be reached.
+    so that the migration holds the write lock from its first statement. ``read_only=True``
+    makes every connection refuse writes (SQLite ``query_only``, PostgreSQL read-only
+    transactions). Raises ``CatalogError`` when the database cannot be reached.
     """
     parsed = _normalised_url(url)
     try:
@@ -211,6 +208,8 @@ def open_engine(url: str, *, migrating: bool = False) -> Engine:
             f"no database driver for {_display_url(parsed)!r} ({exc}); use "
             "postgresql+psycopg://... (psycopg is installed with zoo)"
         ) from None
+    if read_only:
+        _refuse_writes(engine)
     try:
         with engine.connect():
             pass
@@ -221,6 +220,23 @@ def open_engine(url: str, *, migrating: bool = False) -> Engine:
             "check the path or URL given by --db or ZOO_CATALOG"
         ) from None
     return engine
+
+
+def _refuse_writes(engine: Engine) -> None:
+    backend = engine.url.get_backend_name()
+
+    @event.listens_for(engine, "connect")
+    def _read_only(dbapi_connection: Any, _record: Any) -> None:
+        cursor = dbapi_connection.cursor()
+        try:
+            if backend == "sqlite":
+                cursor.execute("PRAGMA query_only = ON")
+            else:
+                cursor.execute("SET default_transaction_read_only = on")
+        finally:
+            cursor.close()
+        if backend != "sqlite":
+            dbapi_connection.commit()  # psycopg opened a transaction for the SET
 
 
 def _configure_sqlite(engine: Engine, *, migrating: bool) -> None:
@@ -488,6 +504,7 @@ def catalog_exists(url: str) -> bool:
 
 
 __all__ = [
+    "Engine",
     "CATALOG_ENV_VAR",
     "CatalogBusy",
     "busy_error",

@@ -7,18 +7,15 @@ page cannot change stored data.
 
 from __future__ import annotations
 
-import os
 import re
 import shlex
-from pathlib import Path
 from typing import Any
 
 import anyio
-from sqlalchemy import event
 from starlette.datastructures import UploadFile
 from starlette.requests import Request
 
-from zoo.catalog.lookup import catalog_lookup
+from zoo.catalog.lookup import catalog_file, catalog_lookup
 from zoo.catalog.service import DEFAULT_MAX_AREA, Catalog
 from zoo.errors import CatalogError, FormatError, LimitExceeded, ParameterError
 from zoo.interchange import nettext, pnml
@@ -44,32 +41,13 @@ def open_read_only(location: str | None) -> Catalog:
     A file path that names no file is refused before the catalog service resolves it, which
     would create the missing parent folders: a reader leaves nothing behind.
     """
-    value = (location or "").strip() or os.environ.get("ZOO_CATALOG", "").strip()
-    if value and "://" not in value and not Path(value).expanduser().is_file():
-        path = Path(value).expanduser().absolute()
+    path = catalog_file(location)
+    if path is not None and not path.is_file():
         raise CatalogError(
             f"no catalog at {path}; build one with: zoo build --max-area {DEFAULT_MAX_AREA} "
             f"--db {shlex.quote(str(path))}"
         )
-    catalog = Catalog.open(location)
-    engine = catalog.engine
-    backend = engine.url.get_backend_name()
-
-    @event.listens_for(engine, "connect")
-    def _read_only(dbapi_connection: Any, _record: Any) -> None:
-        cursor = dbapi_connection.cursor()
-        try:
-            if backend == "sqlite":
-                cursor.execute("PRAGMA query_only = ON")
-            else:
-                cursor.execute("SET default_transaction_read_only = on")
-        finally:
-            cursor.close()
-        if backend != "sqlite":
-            dbapi_connection.commit()  # psycopg opened a transaction for the SET
-
-    engine.dispose()  # the connection Catalog.open checked with was made before the listener
-    return catalog
+    return Catalog.open(location, read_only=True)
 
 
 def parse_upload(data: bytes, filename: str) -> PlaceTransitionNet:
