@@ -11,6 +11,7 @@ from __future__ import annotations
 
 import ast
 import json
+import re
 import subprocess
 import sys
 from pathlib import Path
@@ -39,13 +40,20 @@ ALLOWED: dict[str, set[str]] = {
 }
 BASE_MODULES = {"zoo.errors", "zoo.version"}
 
+#: Database packages: only the storage layer speaks SQL (a repository owns every statement).
+DATABASE_PACKAGES = {"sqlalchemy", "alembic", "sqlite3", "psycopg"}
 #: Third-party packages a layer must not import at all.
 FORBIDDEN_PACKAGES: dict[str, set[str]] = {
-    "core": {"sqlalchemy", "alembic", "typer", "rich", "matplotlib", "starlette", "uvicorn"},
-    "query": {"sqlalchemy", "alembic", "typer", "rich", "pynauty"},
-    "pictures": {"sqlalchemy", "alembic", "typer"},
-    "interchange": {"sqlalchemy", "alembic", "typer"},
-    "catalog": {"typer", "rich", "starlette", "uvicorn"},
+    "core": DATABASE_PACKAGES | {"typer", "rich", "matplotlib", "starlette", "uvicorn"},
+    "query": DATABASE_PACKAGES | {"typer", "rich", "pynauty"},
+    "pictures": DATABASE_PACKAGES | {"typer"},
+    "interchange": DATABASE_PACKAGES | {"typer"},
+    "catalog": DATABASE_PACKAGES | {"typer", "rich", "starlette", "uvicorn"},
+    "publish": DATABASE_PACKAGES,
+    "cli": DATABASE_PACKAGES,
+    "web": DATABASE_PACKAGES,
+    "interface": DATABASE_PACKAGES,
+    "base": DATABASE_PACKAGES,
     "storage": {"typer", "rich", "pynauty"},
 }
 
@@ -207,3 +215,31 @@ def test_identifying_a_net_without_a_catalog_loads_no_database_code() -> None:
     )
     result = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True)
     assert result.returncode == 0, result.stderr
+
+
+_SQL = re.compile(
+    r"\b(SELECT\s|INSERT\s+INTO|DELETE\s+FROM|UPDATE\s+\w+\s+SET|PRAGMA\s|CREATE\s+TABLE)"
+)
+
+
+@pytest.mark.parametrize(
+    "path", [p for p in SOURCES if not module_name(p).startswith("zoo.storage")], ids=module_name
+)
+def test_no_sql_text_above_the_storage_layer(path: Path) -> None:
+    tree = ast.parse(path.read_text(encoding="utf-8"))
+    docstrings = {
+        id(node.body[0].value)
+        for node in ast.walk(tree)
+        if isinstance(node, (ast.Module, ast.ClassDef, ast.FunctionDef, ast.AsyncFunctionDef))
+        and node.body
+        and isinstance(node.body[0], ast.Expr)
+    }
+    found = [
+        f"line {node.lineno}: {node.value[:60]!r}"
+        for node in ast.walk(tree)
+        if isinstance(node, ast.Constant)
+        and isinstance(node.value, str)
+        and id(node) not in docstrings
+        and _SQL.search(node.value)
+    ]
+    assert not found, f"{module_name(path)} holds SQL (it belongs in zoo/storage): {found}"

@@ -95,9 +95,18 @@ def resolve_location(location: str | None = None) -> str:
 def _normalised_url(value: str) -> URL:
     try:
         url = make_url(value)
-    except ArgumentError as exc:
+        # A port that is not a number raises here rather than at connect time.
+        if url.port is not None and not 0 < url.port < 65536:
+            raise ValueError(url.port)
+    except (ArgumentError, ValueError) as exc:
+        reason = (
+            str(exc)
+            if isinstance(exc, ArgumentError)
+            else "its host or port is malformed (a port is a number; an IPv6 host is written "
+            "in brackets, [::1])"
+        )
         raise CatalogError(
-            f"cannot read database URL {value!r}: {exc}; write it as "
+            f"cannot read database URL {_without_password(value)!r}: {reason}; write it as "
             "postgresql+psycopg://USER@HOST:PORT/DATABASE or give a file path"
         ) from None
     if url.drivername in ("postgresql", "postgres"):
@@ -109,6 +118,15 @@ def _normalised_url(value: str) -> URL:
             "(a file path) or PostgreSQL (postgresql+psycopg://...)"
         )
     return url
+
+
+def _without_password(value: str) -> str:
+    """A URL as text with any password replaced by ***, for messages."""
+    scheme, sep, rest = value.partition("://")
+    credentials, at, host = rest.rpartition("@")
+    if not sep or not at or ":" not in credentials:
+        return value
+    return f"{scheme}://{credentials.split(':', 1)[0]}:***@{host}"
 
 
 def _sqlite_file(url: URL) -> Path | None:
