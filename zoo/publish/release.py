@@ -24,7 +24,6 @@ import shutil
 import sys
 import tempfile
 from collections.abc import Callable, Iterable, Iterator
-from contextlib import contextmanager
 from dataclasses import dataclass, field
 from datetime import UTC, datetime
 from pathlib import Path
@@ -33,6 +32,13 @@ from typing import IO, Any, Protocol
 from zoo.catalog.identifiers import class_identifier
 from zoo.errors import CatalogError, FormatError, ZooError
 from zoo.publish.cite import CatalogVersion
+from zoo.publish.outfile import (
+    OutputNotWritable,
+    default_mode,
+    not_writable,
+    replacing,
+    write_output,
+)
 
 DUMP_FORMATS = ("csv", "jsonl")
 MANIFEST_NAME = "manifest.json"
@@ -43,16 +49,6 @@ RELEASE_KIND = "zoo-catalog-release"
 DUMP_NAMES = {"csv": "classes.csv", "jsonl": "classes.jsonl"}
 
 _CHUNK = 1 << 20
-
-
-class OutputNotWritable(ZooError, OSError):
-    """An output file or folder cannot be created where the user asked for it."""
-
-
-def _not_writable(path: Path, exc: OSError) -> OutputNotWritable:
-    """The one-line error for an output that the operating system refused to create."""
-    reason = exc.strerror or type(exc).__name__
-    return OutputNotWritable(f"cannot write {str(path)!r}: {reason}; choose a writable location")
 
 
 class ClassEntryLike(Protocol):
@@ -204,51 +200,9 @@ class _Counter:
             yield item
 
 
-def _default_mode(directory: bool = False) -> int:
-    """Permissions a plain ``open`` would give under the current umask (mkstemp gives 0600)."""
-    mask = os.umask(0)
-    os.umask(mask)
-    return (0o777 if directory else 0o666) & ~mask
-
-
-@contextmanager
-def _replacing(path: Path, what: str) -> Iterator[IO[bytes]]:
-    """A binary file that replaces ``path`` when the block ends normally, and vanishes otherwise.
-
-    It is a temporary file in the same folder, renamed over ``path`` at the end (a rename within
-    one file system is atomic on POSIX), so a failure half-way leaves ``path`` as it was.
-    """
-    folder = path.parent
-    if not folder.is_dir():
-        raise ZooError(f"folder {str(folder)!r} for {what} does not exist; create it first")
-    try:
-        handle, temporary = tempfile.mkstemp(prefix=f".{path.name}.", dir=folder)
-    except OSError as exc:
-        raise _not_writable(path, exc) from None
-    try:
-        with os.fdopen(handle, "wb") as out:
-            yield out
-        os.chmod(temporary, _default_mode())
-        os.replace(temporary, path)
-    except OutputNotWritable:
-        Path(temporary).unlink(missing_ok=True)
-        raise
-    except OSError as exc:  # a full disk, a quota, a target that is a folder
-        Path(temporary).unlink(missing_ok=True)
-        raise _not_writable(path, exc) from None
-    except BaseException:
-        Path(temporary).unlink(missing_ok=True)
-        raise
-
-
 def write_bytes_atomically(path: Path, data: bytes) -> None:
-    """Write ``data`` to ``path`` through a temporary file in the same folder, then rename.
-
-    A failure half-way leaves any existing file at ``path`` as it was.
-    """
-    path = Path(path)
-    with _replacing(path, path.name) as out:
-        out.write(data)
+    """Write ``data`` to ``path`` (``zoo.publish.outfile.write_output``)."""
+    write_output(path, data)
 
 
 def write_dump(entries: Iterable[ClassEntryLike], fmt: str, path: Path) -> DumpSummary:
@@ -257,7 +211,7 @@ def write_dump(entries: Iterable[ClassEntryLike], fmt: str, path: Path) -> DumpS
     An existing file at ``path`` is replaced only once the new dump is complete.
     """
     path = Path(path)
-    with _replacing(path, "the dump") as out:
+    with replacing(path, "the dump") as out:
         summary = write_dump_stream(entries, fmt, out)
     return DumpSummary(path, fmt, summary.classes, summary.bytes, summary.sha256)
 
@@ -310,7 +264,7 @@ def make_release(
     try:
         staging = Path(tempfile.mkdtemp(prefix=f".{folder.name}.", dir=parent))
     except OSError as exc:
-        raise _not_writable(folder, exc) from None
+        raise not_writable(folder, exc) from None
     try:
         dumps = []
         for fmt in DUMP_FORMATS:
@@ -341,8 +295,8 @@ def make_release(
         lines.append(f"{digest}  {MANIFEST_NAME}\n")
         (staging / CHECKSUMS_NAME).write_text("".join(lines), encoding="utf-8")
         for name in (MANIFEST_NAME, CHECKSUMS_NAME):
-            os.chmod(staging / name, _default_mode())
-        os.chmod(staging, _default_mode(directory=True))
+            os.chmod(staging / name, default_mode())
+        os.chmod(staging, default_mode(directory=True))
         if folder.exists():
             folder.rmdir()  # empty, checked above
         os.replace(staging, folder)
@@ -350,7 +304,7 @@ def make_release(
         shutil.rmtree(staging, ignore_errors=True)
         if isinstance(exc, OutputNotWritable):
             raise
-        raise _not_writable(folder, exc) from None
+        raise not_writable(folder, exc) from None
     except BaseException:
         shutil.rmtree(staging, ignore_errors=True)
         raise
