@@ -225,7 +225,7 @@ def column_cell(value: object) -> str:
         return "true" if value else "false"
     if isinstance(value, list):
         return json.dumps([_whole(v) for v in value], separators=(",", ":"))
-    return _whole(str(value)) if isinstance(value, str) else str(value)
+    return str(_whole(value))
 
 
 def _whole(value: object) -> object:
