@@ -10,7 +10,10 @@ installed.
 
 from __future__ import annotations
 
+import os
 import re
+import subprocess
+import sys
 import tomllib
 from pathlib import Path
 from typing import Any
@@ -87,3 +90,47 @@ def test_distribution_name_is_our_own() -> None:
         text = (ROOT / doc).read_text(encoding="utf-8")
         assert "pip install zoo" not in text and "pip install 'zoo" not in text
         assert DISTRIBUTION_NAME in text, doc
+
+
+def _without(modules: tuple[str, ...], *args: str, cwd: Path) -> subprocess.CompletedProcess[str]:
+    """Run the command line in a fresh interpreter where ``modules`` cannot be imported
+    (``sys.modules[name] = None`` makes ``import name`` raise ModuleNotFoundError)."""
+    blocked = "".join(f"sys.modules[{m!r}] = None; " for m in modules)
+    code = f"import sys; {blocked}from zoo.cli import main; sys.argv[0] = 'zoo'; main()"
+    env = {**os.environ, "PYTHONPATH": str(ROOT)}
+    return subprocess.run(
+        [sys.executable, "-c", code, *args],
+        capture_output=True, text=True, cwd=cwd, env=env, check=False, timeout=120,
+    )  # fmt: skip
+
+
+def test_core_runs_without_the_optional_extras(tmp_path: Path) -> None:
+    """The README's first command path: SQLite and text output need neither extra."""
+    optional = ("psycopg", "matplotlib")
+    db = str(tmp_path / "c.sqlite3")
+    built = _without(optional, "build", "--max-area", "6", "--db", db, cwd=tmp_path)
+    assert built.returncode == 0, built.stderr
+    found = _without(optional, "find", "processes = 2 and area < 7", "--db", db, cwd=tmp_path)
+    assert found.returncode == 0, found.stderr
+    assert "C(1,2,1,4)" in found.stdout  # gcd(β, δ) = gcd(2, 4) = 2 processes
+    exported = _without(optional, "export", "4,2,2,3", "--format", "dot", cwd=tmp_path)
+    assert exported.returncode == 0 and "digraph" in exported.stdout
+
+
+def test_missing_extra_is_one_line_naming_it(tmp_path: Path) -> None:
+    cases = [
+        (("matplotlib",), ["draw", "4,2,2,3", "--output", "x.svg"], "plots", "x.svg"),
+        (("matplotlib",), ["stats", "--plot", "s.png", "--db", "c.sqlite3"], "plots", "s.png"),
+        (("psycopg",), ["find", "area < 4", "--db", "postgresql://u@127.0.0.1:5432/x"],
+         "postgres", None),
+    ]  # fmt: skip
+    built = _without((), "build", "--max-area", "4", "--db", "c.sqlite3", cwd=tmp_path)
+    assert built.returncode == 0, built.stderr
+    for modules, args, extra, output in cases:
+        done = _without(modules, *args, cwd=tmp_path)
+        assert done.returncode == 1, (args, done.stderr)
+        assert "Traceback" not in done.stderr
+        lines = done.stderr.strip().splitlines()
+        assert len(lines) == 1 and lines[0].startswith("Error: "), done.stderr
+        assert lines[0].endswith(f"install it with: pip install '{DISTRIBUTION_NAME}[{extra}]'")
+        assert output is None or not (tmp_path / output).exists()
