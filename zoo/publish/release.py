@@ -3,7 +3,11 @@
 * ``write_dump`` streams every class, with its invariants, readings and members, to CSV or JSON
   Lines (https://jsonlines.org: one JSON object per line, UTF-8). Classes are read from the
   catalog one area at a time, so memory stays bounded by the largest area, not the catalog.
-* ``make_release`` writes both dumps into a new folder together with ``manifest.json`` (sizes,
+* A CSV dump has one row per reading and one column per value; a JSON Lines record also
+  writes each exact big integer as a decimal string; a dump to a file gets its data dictionary
+  ``datapackage.json`` beside it (zoo.publish.dictionary).
+* ``make_release`` writes both dumps and their ``datapackage.json`` into a new folder together
+  with ``manifest.json`` (sizes,
   SHA-256 checksums, zoo and encoding versions, the area up to which the catalog is complete)
   and ``SHA256SUMS`` in the format of GNU coreutils' ``sha256sum``, so a reader can check a
   release with ``zoo release --verify DIR`` or with ``sha256sum -c SHA256SUMS`` alone.
