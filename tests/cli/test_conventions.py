@@ -47,7 +47,7 @@ def test_version_is_the_installed_distribution_version() -> None:
     assert (result.returncode, result.stderr) == (0, "")
     # The package metadata pip installed, not a constant of the code under test; found through
     # the import package, since the distribution is named cycloid-zoo (older installs: zoo).
-    (distribution,) = packages_distributions()["zoo"]
+    (distribution,) = set(packages_distributions()["zoo"])
     assert result.stdout == f"zoo {installed_version(distribution)}\n"
 
 
