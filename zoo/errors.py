@@ -4,6 +4,8 @@ Every error a user can cause is a ``ZooError`` whose message is one line naming 
 rule, the value and the fix. Subclasses also inherit the builtin a caller would catch.
 """
 
+from typing import Any
+
 
 class ZooError(Exception):
     """Base class of every error zoo raises on purpose."""
@@ -40,3 +42,31 @@ class NotInCatalog(ZooError, LookupError):
 
 class FormatError(ZooError, ValueError):
     """An input file (PNML, net text, seeds data) is malformed, unsafe or unsupported."""
+
+
+class MissingExtra(ZooError, ImportError):
+    """An optional part of zoo is used but its extra (pyproject.toml) is not installed."""
+
+
+def extra_advice(module: str, extra: str, purpose: str) -> str:
+    """The one line that says which extra to install for ``purpose``."""
+    from zoo.version import DISTRIBUTION_NAME
+
+    return (
+        f"{purpose} needs {module}, which is not installed; install it with: "
+        f"pip install '{DISTRIBUTION_NAME}[{extra}]'"
+    )
+
+
+def import_extra(module: str, extra: str, purpose: str) -> Any:
+    """Import ``module`` of the optional ``extra``, or raise MissingExtra naming the extra.
+
+    >>> import_extra("json", "none", "reading JSON").__name__
+    'json'
+    """
+    import importlib
+
+    try:
+        return importlib.import_module(module)
+    except ImportError:
+        raise MissingExtra(extra_advice(module.split(".")[0], extra, purpose)) from None

@@ -10,6 +10,7 @@ from __future__ import annotations
 import os
 import subprocess
 import sys
+from importlib.metadata import packages_distributions
 from importlib.metadata import version as installed_version
 from pathlib import Path
 
@@ -44,8 +45,10 @@ def db(tmp_path_factory: pytest.TempPathFactory) -> str:
 def test_version_is_the_installed_distribution_version() -> None:
     result = subprocess.run([str(ZOO), "--version"], capture_output=True, text=True, check=False)
     assert (result.returncode, result.stderr) == (0, "")
-    # The package metadata pip installed, not a constant of the code under test.
-    assert result.stdout == f"zoo {installed_version('zoo')}\n"
+    # The package metadata pip installed, not a constant of the code under test; found through
+    # the import package, since the distribution is named cycloid-zoo (older installs: zoo).
+    (distribution,) = set(packages_distributions()["zoo"])
+    assert result.stdout == f"zoo {installed_version(distribution)}\n"
 
 
 def test_completion_is_offered_and_completes_commands_and_options() -> None:

@@ -172,15 +172,22 @@ class FindResult:
 
 def column_cell(value: object) -> str:
     """A typed column value as CSV text, written as the dump writes it: true/false, whole
-    numbers as digits, fractions as num/den, lists as compact JSON (``[1,2]``,
+    numbers as digits, fractions as num/den (``2``, not ``2/1``), lists as compact JSON (``[1,2]``,
     ``[false,true]``), nothing for None."""
     if value is None:
         return ""
     if isinstance(value, bool):
         return "true" if value else "false"
     if isinstance(value, list):
-        return json.dumps(value, separators=(",", ":"))
-    return str(value)
+        return json.dumps([_whole(v) for v in value], separators=(",", ":"))
+    return str(_whole(value))
+
+
+def _whole(value: object) -> object:
+    """A fraction text ``n/1`` as ``n``: in CSV a whole fraction is written as an integer."""
+    if isinstance(value, str) and value.endswith("/1") and value[:-2].lstrip("-").isdigit():
+        return value[:-2]
+    return value
 
 
 def build_command(max_area: int, location: str | None = None) -> str:

@@ -616,8 +616,9 @@ def stats(
 
 def draw_stats(rows: Sequence[AreaStats], path: Path) -> None:
     """Draw the per-area counts (log scale) to a PNG or SVG file with matplotlib's Agg backend."""
-    import matplotlib
+    from zoo.errors import import_extra
 
+    matplotlib = import_extra("matplotlib", "plots", "zoo stats --plot")
     matplotlib.use("Agg")
     from matplotlib.figure import Figure
 

@@ -210,11 +210,8 @@ def print_property_table(
 
 
 def write_file_atomically(path: Path, data: bytes) -> None:
-    """Write a file through a temporary file renamed at the end (every command that writes one).
+    """Write an output file the way every command does (``zoo.publish.outfile.write_output``:
+    atomic replacement, written through symbolic links, special files refused)."""
+    from zoo.publish.outfile import write_output
 
-    A failure half-way leaves any existing file at ``path`` as it was
-    (``zoo.publish.release.write_bytes_atomically``).
-    """
-    from zoo.publish.release import write_bytes_atomically
-
-    write_bytes_atomically(path, data)
+    write_output(path, data)

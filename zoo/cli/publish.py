@@ -107,18 +107,27 @@ def dump(
             "--output",
             "-o",
             dir_okay=False,
-            help="File to write (replaced only when the dump is complete); "
-            "standard output when omitted.",
+            help="File to write (replaced only when the dump is complete), with its data "
+            "dictionary datapackage.json beside it; standard output when omitted.",
         ),
     ] = None,
     db: ReadOnlyCatalogOption = None,
 ) -> None:
     """Write every class of the catalog with invariants, readings and members (CSV, JSON Lines).
 
+    CSV has one row per reading and one column per value; a file dump is described column by
+    column in datapackage.json beside it.
+
     Streams one batch of classes at a time. Example: zoo dump --format jsonl --output all.jsonl
     """
     from zoo.catalog.service import Catalog
-    from zoo.publish.release import iter_catalog_entries, iter_dump_lines, write_dump
+    from zoo.publish.release import (
+        check_package_slot,
+        iter_catalog_entries,
+        iter_dump_lines,
+        write_dump,
+        write_dump_package,
+    )
 
     try:
         chosen = _dump_format(fmt, output)
@@ -127,13 +136,16 @@ def dump(
                 for line in iter_dump_lines(iter_catalog_entries(catalog), chosen.value):
                     sys.stdout.write(line)
                 return
+            check_package_slot(output)
             summary = write_dump(iter_catalog_entries(catalog), chosen.value, output)
             complete = catalog.complete_to()
+            described = write_dump_package(summary, complete)
     except ZooError as exc:
         raise fail(exc) from None
     typer.echo(
         f"Wrote {summary.path}: {summary.classes:,} classes, {summary.bytes:,} bytes, "
-        f"catalog complete to area {complete}; SHA-256 {summary.sha256}",
+        f"catalog complete to area {complete}; SHA-256 {summary.sha256}; "
+        f"columns described in {described}",
         err=True,
     )
 

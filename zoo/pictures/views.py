@@ -37,7 +37,7 @@ from typing import Any
 
 from zoo.core.invariants import is_regular, reachable_state_count
 from zoo.core.params import ParameterSet
-from zoo.errors import LimitExceeded, ParameterError
+from zoo.errors import LimitExceeded, ParameterError, import_extra
 from zoo.pictures import style
 from zoo.pictures.layout import (
     Point,
@@ -708,8 +708,7 @@ def _render(plot: Callable[[_Canvas], None], extent: Extent, fmt: str) -> bytes:
     ``extent`` is the page rectangle and the scale in inches per page unit; the axes fill the
     figure exactly, so that marker sizes in points and lengths in page units agree.
     """
-    import matplotlib
-
+    matplotlib = import_extra("matplotlib", "plots", "drawing a picture")
     matplotlib.use("Agg")
     import matplotlib.pyplot as plt
 

@@ -17,6 +17,9 @@ An identifier's meaning never changes (its area is stored
 whole), so the version tells a reader which catalog they can look the entry up in, not a
 different meaning.
 
+Every citation carries the project's landing page (``zoo.version.HOMEPAGE``, also in
+pyproject.toml and CITATION.cff) as BibTeX's ``url`` field.
+
 The BibTeX entry is ``@misc`` (the BibTeX standard styles' type for a work that fits no other)
 with the key ``zoo:CY16-3``, derived from the identifier alone so that it is stable across
 catalog versions.
@@ -29,7 +32,7 @@ from dataclasses import dataclass
 from typing import Any
 
 from zoo.errors import CatalogError, NotInCatalog
-from zoo.version import __version__
+from zoo.version import HOMEPAGE, __version__
 
 #: Title of the work a citation points into.
 CATALOG_TITLE = "zoo: a research catalog of Petri's cycloids"
@@ -100,7 +103,8 @@ class Citation:
         year = f" ({self.year})" if self.year else ""
         return (
             f"{CATALOG_TITLE}{year}, {what} {self.identifier}, label {self.label}; "
-            f"catalog version {self.version.describe()}; fingerprint {self.fingerprint}."
+            f"catalog version {self.version.describe()}; fingerprint {self.fingerprint}; "
+            f"{HOMEPAGE}."
         )
 
     def bibtex(self) -> str:
@@ -122,6 +126,8 @@ class Citation:
             ),
         ]
         body = ",\n".join(f"  {name} = {{{_bibtex_value(value)}}}" for name, value in fields)
+        # A URL is written as is: BibTeX styles hand it to \url, which reads % and _ literally.
+        body += f",\n  url = {{{HOMEPAGE}}}"
         return f"@misc{{{self.key},\n{body}\n}}\n"
 
     def as_dict(self) -> dict[str, Any]:
@@ -132,6 +138,7 @@ class Citation:
             "fingerprint": self.fingerprint,
             "catalog_version": self.version.as_dict(),
             "year": self.year,
+            "url": HOMEPAGE,
             "bibtex_key": self.key,
             "bibtex": self.bibtex(),
             "text": self.text(),

@@ -3,7 +3,11 @@
 * ``write_dump`` streams every class, with its invariants, readings and members, to CSV or JSON
   Lines (https://jsonlines.org: one JSON object per line, UTF-8). Classes are read from the
   catalog one area at a time, so memory stays bounded by the largest area, not the catalog.
-* ``make_release`` writes both dumps into a new folder together with ``manifest.json`` (sizes,
+* A CSV dump has one row per reading and one column per value; a JSON Lines record also
+  writes each exact big integer as a decimal string; a dump to a file gets its data dictionary
+  ``datapackage.json`` beside it (zoo.publish.dictionary).
+* ``make_release`` writes both dumps and their ``datapackage.json`` into a new folder together
+  with ``manifest.json`` (sizes,
   SHA-256 checksums, zoo and encoding versions, the area up to which the catalog is complete)
   and ``SHA256SUMS`` in the format of GNU coreutils' ``sha256sum``, so a reader can check a
   release with ``zoo release --verify DIR`` or with ``sha256sum -c SHA256SUMS`` alone.
@@ -24,7 +28,6 @@ import shutil
 import sys
 import tempfile
 from collections.abc import Callable, Iterable, Iterator
-from contextlib import contextmanager
 from dataclasses import dataclass, field
 from datetime import UTC, datetime
 from pathlib import Path
@@ -33,6 +36,22 @@ from typing import IO, Any, Protocol
 from zoo.catalog.identifiers import class_identifier
 from zoo.errors import CatalogError, FormatError, ZooError
 from zoo.publish.cite import CatalogVersion
+from zoo.publish.dictionary import (
+    CSV_COLUMNS,
+    csv_rows,
+    data_package,
+    dump_resource,
+    with_decimal_twins,
+)
+from zoo.publish.outfile import (
+    OutputNotWritable,
+    default_mode,
+    not_writable,
+    output_target,
+    replacing,
+    write_output,
+)
+from zoo.version import DISTRIBUTION_NAME
 
 DUMP_FORMATS = ("csv", "jsonl")
 MANIFEST_NAME = "manifest.json"
@@ -41,18 +60,10 @@ CHECKSUMS_NAME = "SHA256SUMS"
 MANIFEST_VERSION = 1
 RELEASE_KIND = "zoo-catalog-release"
 DUMP_NAMES = {"csv": "classes.csv", "jsonl": "classes.jsonl"}
+#: The data dictionary (a Frictionless Data Package descriptor; the spec fixes the name).
+PACKAGE_NAME = "datapackage.json"
 
 _CHUNK = 1 << 20
-
-
-class OutputNotWritable(ZooError, OSError):
-    """An output file or folder cannot be created where the user asked for it."""
-
-
-def _not_writable(path: Path, exc: OSError) -> OutputNotWritable:
-    """The one-line error for an output that the operating system refused to create."""
-    reason = exc.strerror or type(exc).__name__
-    return OutputNotWritable(f"cannot write {str(path)!r}: {reason}; choose a writable location")
 
 
 class ClassEntryLike(Protocol):
@@ -104,56 +115,38 @@ def iter_catalog_entries(
 
 # --- records ---------------------------------------------------------------------------
 #
-# A JSON Lines record is exactly what `zoo show ID --format json` prints for the class
-# (ClassEntry.as_dict: identity, members, every class invariant, readings, seeds), so one reader
-# serves both. A CSV row has one column per top-level key of that record, in its order.
-
-
-def _cell(key: str, value: Any) -> str:
-    """A CSV cell: text as is, true/false, None empty, members space-separated, else JSON."""
-    if value is None:
-        return ""
-    if isinstance(value, bool):
-        return "true" if value else "false"
-    if key == "members" and isinstance(value, list):
-        return " ".join(str(member) for member in value)
-    if isinstance(value, (dict, list, tuple)):
-        return json.dumps(value, ensure_ascii=False, separators=(",", ":"))
-    return str(value)
+# A JSON Lines record is what `zoo show ID --format json` prints for the class
+# (ClassEntry.as_dict: identity, members, every class invariant, readings, seeds), with each
+# exact big integer also as a decimal string (``states_decimal``, ...; zoo.publish.dictionary).
+# A CSV row is one reading of a class, one column per value (zoo.publish.dictionary.CSV_COLUMNS).
 
 
 def iter_csv_lines(records: Iterable[dict[str, Any]]) -> Iterator[str]:
-    """CSV text (RFC 4180 quoting, CRLF line ends as Python's csv module writes) line by line.
-
-    The header comes from the first record; a later record with other keys is an error rather
-    than a silently misaligned column.
-    """
+    """CSV text (RFC 4180 quoting, CRLF line ends as Python's csv module writes) line by line:
+    a header, then one row per reading of each class."""
     buffer = io.StringIO()
     writer = csv.writer(buffer)
-    columns: list[str] | None = None
+    writer.writerow([column.name for column in CSV_COLUMNS])
+    yield buffer.getvalue()
     for record in records:
-        keys = list(record)
-        if columns is None:
-            columns = keys
-            writer.writerow(columns)
-        elif keys != columns:
-            raise CatalogError(
-                f"class {record.get('id')} has fields {keys} but earlier classes have "
-                f"{columns}; the catalog mixes builds of different zoo versions: rebuild it"
-            )
-        writer.writerow([_cell(key, record[key]) for key in columns])
-        yield buffer.getvalue()
         buffer.seek(0)
         buffer.truncate()
-    if columns is None:  # an empty catalog still gets a header
-        writer.writerow(["id", "label", "area", "members"])
+        try:
+            writer.writerows(csv_rows(record))
+        except (KeyError, IndexError, TypeError) as exc:
+            raise CatalogError(
+                f"class {record.get('id')} lacks the value {exc}; the catalog was built by "
+                "another zoo version: rebuild it"
+            ) from None
         yield buffer.getvalue()
 
 
 def iter_jsonl_lines(records: Iterable[dict[str, Any]]) -> Iterator[str]:
-    """JSON Lines: one compact JSON object per class, exact integers, UTF-8."""
+    """JSON Lines: one compact JSON object per class, exact integers (big ones also as decimal
+    strings), UTF-8."""
     for record in records:
-        yield json.dumps(record, ensure_ascii=False, separators=(",", ":")) + "\n"
+        text = json.dumps(with_decimal_twins(record), ensure_ascii=False, separators=(",", ":"))
+        yield text + "\n"
 
 
 def iter_dump_lines(entries: Iterable[ClassEntryLike], fmt: str) -> Iterator[str]:
@@ -204,51 +197,9 @@ class _Counter:
             yield item
 
 
-def _default_mode(directory: bool = False) -> int:
-    """Permissions a plain ``open`` would give under the current umask (mkstemp gives 0600)."""
-    mask = os.umask(0)
-    os.umask(mask)
-    return (0o777 if directory else 0o666) & ~mask
-
-
-@contextmanager
-def _replacing(path: Path, what: str) -> Iterator[IO[bytes]]:
-    """A binary file that replaces ``path`` when the block ends normally, and vanishes otherwise.
-
-    It is a temporary file in the same folder, renamed over ``path`` at the end (a rename within
-    one file system is atomic on POSIX), so a failure half-way leaves ``path`` as it was.
-    """
-    folder = path.parent
-    if not folder.is_dir():
-        raise ZooError(f"folder {str(folder)!r} for {what} does not exist; create it first")
-    try:
-        handle, temporary = tempfile.mkstemp(prefix=f".{path.name}.", dir=folder)
-    except OSError as exc:
-        raise _not_writable(path, exc) from None
-    try:
-        with os.fdopen(handle, "wb") as out:
-            yield out
-        os.chmod(temporary, _default_mode())
-        os.replace(temporary, path)
-    except OutputNotWritable:
-        Path(temporary).unlink(missing_ok=True)
-        raise
-    except OSError as exc:  # a full disk, a quota, a target that is a folder
-        Path(temporary).unlink(missing_ok=True)
-        raise _not_writable(path, exc) from None
-    except BaseException:
-        Path(temporary).unlink(missing_ok=True)
-        raise
-
-
 def write_bytes_atomically(path: Path, data: bytes) -> None:
-    """Write ``data`` to ``path`` through a temporary file in the same folder, then rename.
-
-    A failure half-way leaves any existing file at ``path`` as it was.
-    """
-    path = Path(path)
-    with _replacing(path, path.name) as out:
-        out.write(data)
+    """Write ``data`` to ``path`` (``zoo.publish.outfile.write_output``)."""
+    write_output(path, data)
 
 
 def write_dump(entries: Iterable[ClassEntryLike], fmt: str, path: Path) -> DumpSummary:
@@ -257,9 +208,60 @@ def write_dump(entries: Iterable[ClassEntryLike], fmt: str, path: Path) -> DumpS
     An existing file at ``path`` is replaced only once the new dump is complete.
     """
     path = Path(path)
-    with _replacing(path, "the dump") as out:
+    with replacing(path, "the dump") as out:
         summary = write_dump_stream(entries, fmt, out)
     return DumpSummary(path, fmt, summary.classes, summary.bytes, summary.sha256)
+
+
+def package_path(dump_path: Path) -> Path:
+    """Where the data dictionary of a dump written to ``dump_path`` goes: ``datapackage.json``
+    in the folder of the file (of the link's target, for a link)."""
+    return output_target(Path(dump_path)).parent / PACKAGE_NAME
+
+
+def _read_own_package(path: Path) -> dict[str, Any] | None:
+    """The zoo-written descriptor at ``path``, None if there is none; a foreign one is refused
+    (it describes other data, and a dump never overwrites what it did not write)."""
+    if not path.exists() and not path.is_symlink():
+        return None
+    try:
+        package = json.loads(path.read_text(encoding="utf-8"))
+    except (OSError, UnicodeDecodeError, json.JSONDecodeError):
+        package = None
+    if not isinstance(package, dict) or not str(package.get("x-written-by", "")).startswith(
+        DISTRIBUTION_NAME
+    ):
+        raise ZooError(
+            f"{str(path)!r} exists and was not written by zoo, so the dump's data dictionary "
+            "cannot go beside it; write the dump into another folder"
+        )
+    return package
+
+
+def check_package_slot(dump_path: Path) -> None:
+    """Refuse, before anything is written, a dump whose data dictionary could not be written."""
+    _read_own_package(package_path(dump_path))
+
+
+def write_dump_package(summary: DumpSummary, complete_to: int | None) -> Path:
+    """Write or update ``datapackage.json`` beside a dump file, describing it.
+
+    Other dumps that an earlier zoo run described in the same folder keep their resource while
+    their file is still there, so a CSV and a JSON Lines dump side by side share one descriptor.
+    """
+    path = package_path(summary.path)
+    folder = path.parent
+    name = output_target(summary.path).name
+    earlier = _read_own_package(path) or {}
+    resources = [
+        r
+        for r in earlier.get("resources", [])
+        if isinstance(r, dict) and r.get("path") != name and (folder / str(r.get("path"))).is_file()
+    ]
+    resources.append(dump_resource(name, summary.format, summary.bytes, summary.sha256))
+    package = data_package(resources, complete_to)
+    write_output(path, (json.dumps(package, indent=2, ensure_ascii=False) + "\n").encode())
+    return path
 
 
 # --- releases --------------------------------------------------------------------------
@@ -310,7 +312,7 @@ def make_release(
     try:
         staging = Path(tempfile.mkdtemp(prefix=f".{folder.name}.", dir=parent))
     except OSError as exc:
-        raise _not_writable(folder, exc) from None
+        raise not_writable(folder, exc) from None
     try:
         dumps = []
         for fmt in DUMP_FORMATS:
@@ -321,6 +323,19 @@ def make_release(
                 f"the catalog changed while the release was written ({sorted(counts)} classes); "
                 "write the release again when no build is running"
             )
+        package = data_package(
+            [dump_resource(d.path.name, d.format, d.bytes, d.sha256) for d in dumps],
+            version.complete_to,
+        )
+        package_bytes = (json.dumps(package, indent=2, ensure_ascii=False) + "\n").encode()
+        write_output(staging / PACKAGE_NAME, package_bytes)
+        described = DumpSummary(
+            staging / PACKAGE_NAME,
+            "datapackage",
+            dumps[0].classes,
+            len(package_bytes),
+            hashlib.sha256(package_bytes).hexdigest(),
+        )
         stamp = (created_at or datetime.now(UTC)).replace(microsecond=0)
         manifest = {
             "kind": RELEASE_KIND,
@@ -329,20 +344,20 @@ def make_release(
             "catalog": {**version.as_dict(), "classes": dumps[0].classes},
             "files": [
                 {"name": d.path.name, "format": d.format, "bytes": d.bytes, "sha256": d.sha256}
-                for d in dumps
+                for d in (*dumps, described)
             ],
         }
         (staging / MANIFEST_NAME).write_text(
             json.dumps(manifest, indent=2, ensure_ascii=False) + "\n", encoding="utf-8"
         )
         # sha256sum's text format: digest, two spaces (text mode), file name.
-        lines = [f"{d.sha256}  {d.path.name}\n" for d in dumps]
+        lines = [f"{d.sha256}  {d.path.name}\n" for d in (*dumps, described)]
         size, digest = file_sha256(staging / MANIFEST_NAME)
         lines.append(f"{digest}  {MANIFEST_NAME}\n")
         (staging / CHECKSUMS_NAME).write_text("".join(lines), encoding="utf-8")
         for name in (MANIFEST_NAME, CHECKSUMS_NAME):
-            os.chmod(staging / name, _default_mode())
-        os.chmod(staging, _default_mode(directory=True))
+            os.chmod(staging / name, default_mode())
+        os.chmod(staging, default_mode(directory=True))
         if folder.exists():
             folder.rmdir()  # empty, checked above
         os.replace(staging, folder)
@@ -350,7 +365,7 @@ def make_release(
         shutil.rmtree(staging, ignore_errors=True)
         if isinstance(exc, OutputNotWritable):
             raise
-        raise _not_writable(folder, exc) from None
+        raise not_writable(folder, exc) from None
     except BaseException:
         shutil.rmtree(staging, ignore_errors=True)
         raise

@@ -31,7 +31,7 @@ from sqlalchemy import Connection, Engine, create_engine, event, inspect, text
 from sqlalchemy.engine import URL, make_url
 from sqlalchemy.exc import ArgumentError, DBAPIError, NoSuchModuleError, OperationalError
 
-from zoo.errors import CatalogError
+from zoo.errors import CatalogError, MissingExtra, extra_advice
 from zoo.storage.location import (
     CATALOG_ENV_VAR,
     DEFAULT_FILE_NAME,
@@ -222,9 +222,13 @@ def open_engine(url: str, *, migrating: bool = False, read_only: bool = False) -
         else:
             engine = create_engine(parsed, pool_pre_ping=True)
     except (NoSuchModuleError, ModuleNotFoundError) as exc:
+        if parsed.get_backend_name() == "postgresql" and getattr(exc, "name", "") == "psycopg":
+            raise MissingExtra(
+                extra_advice("psycopg", "postgres", "a PostgreSQL catalog")
+            ) from None
         raise CatalogError(
             f"no database driver for {_display_url(parsed)!r} ({exc}); use "
-            "postgresql+psycopg://... (psycopg is installed with zoo)"
+            "postgresql+psycopg://... (psycopg comes with the postgres extra)"
         ) from None
     if read_only:
         _refuse_writes(engine)

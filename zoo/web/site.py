@@ -13,7 +13,6 @@ from __future__ import annotations
 import asyncio
 import json
 import os
-import tempfile
 from collections.abc import Callable
 from concurrent.futures import ThreadPoolExecutor
 from dataclasses import dataclass
@@ -21,6 +20,7 @@ from pathlib import Path
 from typing import Any
 
 from zoo.errors import ZooError
+from zoo.publish.outfile import write_output
 from zoo.web.app import create_app
 from zoo.web.catalog_access import open_read_only
 
@@ -151,11 +151,8 @@ def write_site(
 
 
 def _write(target: Path, body: bytes) -> None:
-    """Write through a temporary file and rename, so that a page is whole or absent."""
-    handle, name = tempfile.mkstemp(dir=target.parent, prefix=".tmp-")
-    with os.fdopen(handle, "wb") as out:
-        out.write(body)
-    os.replace(name, target)
+    """Write a page whole or not at all (``zoo.publish.outfile``, as every command writes)."""
+    write_output(target, body)
 
 
 __all__ = ["SiteReport", "search_index", "write_site"]
