@@ -136,11 +136,30 @@ def stored_values(inv: registry.Invariant, value: object) -> dict[str, object]:
 def stored_row(table: str, values: Mapping[str, object]) -> dict[str, object]:
     """The columns of every registry invariant stored on ``table``, from values by name."""
     row: dict[str, object] = {}
-    for inv in registry.stored_on(table):
-        if inv.name not in values:
-            raise KeyError(f"no value of {inv.name} for a row of {table}")
-        row.update(stored_values(inv, values[inv.name]))
+    for name, kind, columns in _STORED_LAYOUT[table]:
+        try:
+            value = values[name]
+        except KeyError:
+            raise KeyError(f"no value of {name} for a row of {table}") from None
+        # The common cases inline (a build writes every row through here); the rest as above.
+        if kind is registry.ValueType.INTEGER and type(value) is int:
+            row[columns[0]] = value
+        elif kind is registry.ValueType.BIG_INTEGER and type(value) is int:
+            row[columns[0]] = str(value)
+            row[columns[1]] = sortable_key(value)
+        elif kind is registry.ValueType.FRACTION and isinstance(value, Fraction):
+            row[columns[0]] = value.numerator
+            row[columns[1]] = value.denominator
+        else:
+            row.update(stored_values(registry.invariant(name), value))
     return row
+
+
+#: (name, type, columns) of the invariants stored on each table, worked out once.
+_STORED_LAYOUT: dict[str, tuple[tuple[str, registry.ValueType, tuple[str, ...]], ...]] = {
+    table: tuple((inv.name, inv.type, inv.columns) for inv in registry.stored_on(table))
+    for table in registry.LEVEL_TABLES.values()
+}
 
 
 def loaded_values(table: str, row: Any, prefix: str = "") -> dict[str, registry.Value]:
