@@ -136,28 +136,40 @@ def stored_values(inv: registry.Invariant, value: object) -> dict[str, object]:
 def stored_row(table: str, values: Mapping[str, object]) -> dict[str, object]:
     """The columns of every registry invariant stored on ``table``, from values by name."""
     row: dict[str, object] = {}
-    for name, kind, columns in _STORED_LAYOUT[table]:
+    for name, kind, first, second in _STORED_LAYOUT[table]:
         try:
             value = values[name]
         except KeyError:
             raise KeyError(f"no value of {name} for a row of {table}") from None
-        # The common cases inline (a build writes every row through here); the rest as above.
-        if kind is registry.ValueType.INTEGER and type(value) is int:
-            row[columns[0]] = value
-        elif kind is registry.ValueType.BIG_INTEGER and type(value) is int:
-            row[columns[0]] = str(value)
-            row[columns[1]] = sortable_key(value)
-        elif kind is registry.ValueType.FRACTION and isinstance(value, Fraction):
-            row[columns[0]] = value.numerator
-            row[columns[1]] = value.denominator
+        # A build writes every row through here: plain ints, bools and fractions go straight in.
+        if kind == _WHOLE and type(value) is int:
+            row[first] = value
+        elif kind == _EXACT and type(value) is int:
+            row[first] = str(value)
+            row[second] = sortable_key(value)
+        elif kind == _RATIO and type(value) is Fraction:
+            row[first] = value.numerator
+            row[second] = value.denominator
+        elif kind == _YES_NO and type(value) is bool:
+            row[first] = value
         else:
             row.update(stored_values(registry.invariant(name), value))
     return row
 
 
-#: (name, type, columns) of the invariants stored on each table, worked out once.
-_STORED_LAYOUT: dict[str, tuple[tuple[str, registry.ValueType, tuple[str, ...]], ...]] = {
-    table: tuple((inv.name, inv.type, inv.columns) for inv in registry.stored_on(table))
+_WHOLE, _EXACT, _RATIO, _YES_NO = (
+    registry.ValueType.INTEGER.value,
+    registry.ValueType.BIG_INTEGER.value,
+    registry.ValueType.FRACTION.value,
+    registry.ValueType.BOOLEAN.value,
+)
+
+#: (name, type, first column, second column or "") of the invariants stored on each table.
+_STORED_LAYOUT: dict[str, tuple[tuple[str, str, str, str], ...]] = {
+    table: tuple(
+        (inv.name, inv.type.value, inv.columns[0], inv.columns[-1] if len(inv.columns) > 1 else "")
+        for inv in registry.stored_on(table)
+    )
     for table in registry.LEVEL_TABLES.values()
 }
 
