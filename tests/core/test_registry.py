@@ -196,3 +196,23 @@ def test_one_vocabulary_lists_and_counts() -> None:
     assert not keys & {"members", "readings"}
     assert registry.invariant("member_count").aliases == ("members",)
     assert registry.invariant("reading_count").aliases == ("readings",)
+
+
+def test_cycle_family_entries_agree_with_the_checked_formulas() -> None:
+    # The registry spells the forward and backward cycle families as three numbers each; they
+    # must be zoo.core.invariants.forward_cycles/backward_cycles, which tests/core/
+    # test_invariants.py checks against the explicit nets (docs/theory/processes.md).
+    from zoo.catalog.enumeration import iter_parameter_sets
+    from zoo.core import invariants
+
+    for area in range(1, 25):
+        for p in iter_parameter_sets(area):
+            for side, family in (
+                ("forward", invariants.forward_cycles(p)),
+                ("backward", invariants.backward_cycles(p)),
+            ):
+                got = tuple(
+                    registry.invariant(f"{side}_{part}").of_params(p)
+                    for part in ("count", "length", "tokens")
+                )
+                assert got == (family.count, family.length, family.tokens), p

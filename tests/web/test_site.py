@@ -5,6 +5,7 @@ from __future__ import annotations
 
 import functools
 import json
+import re
 import threading
 from collections.abc import Iterator
 from http.server import SimpleHTTPRequestHandler, ThreadingHTTPServer
@@ -108,3 +109,25 @@ def test_area_index_links_entries(page: Any, site_url: str, site_folder: Path) -
     assert listed == of_area_5 and listed
     page.click("text=area 6 →")
     assert page.locator("h1").inner_text() == "Area 6"
+
+
+def test_class_pages_write_the_group_one_way_and_per_reading(site_folder: Path) -> None:
+    # issue 8: one group notation (Z_n when cyclic, never Z_1 x Z_n), and each reading row
+    # carries its own group and iteration depth (Smith normal form of that reading's label,
+    # docs/theory/lattice-key.md; the values come from zoo.core.algebra).
+    from zoo.core import algebra
+    from zoo.core.params import parse_params
+
+    pages = sorted((site_folder / "classes").glob("CY*/index.html"))
+    assert len(pages) == 20
+    for page in pages:
+        html = page.read_text(encoding="utf-8")
+        assert "Z<sub>1</sub>" not in html, page
+        assert '<th scope="col">transition group</th>' in html
+        rows = re.findall(r"<tr><td>(C\([0-9,]+\))</td>(.*?)</tr>", html, re.S)
+        assert rows, page
+        for label, cells in rows:
+            d1, order = algebra.transition_group(parse_params(label))
+            group = f"Z<sub>{order}</sub>" if d1 == 1 else f"Z<sub>{d1}</sub> × Z<sub>{order}</sub>"
+            depth = algebra.iteration_depth(parse_params(label))
+            assert f"<td>{group}</td><td>{depth}</td>" in cells, (page, label)

@@ -28,7 +28,7 @@ import time
 from collections.abc import Callable, Iterable, Mapping
 from dataclasses import dataclass, field
 from fractions import Fraction
-from typing import Protocol
+from typing import Protocol, cast
 
 from zoo.catalog.enumeration import iter_parameter_tuples
 from zoo.catalog.identifiers import class_identifier, frame_identifier
@@ -213,49 +213,45 @@ def _summarise_reading(members: Members) -> ReadingSummary:
         lattice_g=key.g,
         lattice_r=key.r,
         members=members,
-        processes=_int(values["processes"]),
+        processes=cast(int, values["processes"]),
         regular=bool(values["regular"]),
-        slowness=_fraction(values["slowness"]),
+        slowness=cast(Fraction, values["slowness"]),
         forward=invariants.CycleFamily(
-            _int(values["forward_count"]),
-            _int(values["forward_length"]),
-            _int(values["forward_tokens"]),
+            cast(int, values["forward_count"]),
+            cast(int, values["forward_length"]),
+            cast(int, values["forward_tokens"]),
         ),
         backward=invariants.CycleFamily(
-            _int(values["backward_count"]),
-            _int(values["backward_length"]),
-            _int(values["backward_tokens"]),
+            cast(int, values["backward_count"]),
+            cast(int, values["backward_length"]),
+            cast(int, values["backward_tokens"]),
         ),
-        nf_beta_delta=_params(values["normal_form_beta_delta"]),
-        nf_alpha_gamma=_params(values["normal_form_alpha_gamma"]),
+        nf_beta_delta=cast(ParameterSet, values["normal_form_beta_delta"]),
+        nf_alpha_gamma=cast(ParameterSet, values["normal_form_alpha_gamma"]),
         values=values,
     )
+
+
+#: (name, rule over the readings, formula) of every registry invariant stored per class.
+_CLASS_FORMULAS = tuple(
+    (inv.name, inv.over_readings, inv.compute)
+    for inv in registry.stored_on("classes")
+    if inv.compute is not None
+)
+
+
+def _over(rule: str, compute: Callable[[ParameterSet], object], labels: Members) -> object:
+    """A class value from its reading labels by the registry's rule (``Invariant.of_class``)."""
+    if rule == registry.FIRST or len(labels) == 1:
+        return compute(labels[0])
+    values = [compute(label) for label in labels]
+    return all(values) if rule == registry.EVERY else max(values)  # type: ignore[type-var]
 
 
 #: (name, formula) of every registry invariant stored per reading, looked up once.
 _READING_FORMULAS = tuple(
     (inv.name, inv.compute) for inv in registry.stored_on("readings") if inv.compute is not None
 )
-
-
-def _int(value: object) -> int:
-    assert isinstance(value, int), value  # the registry's type of this invariant
-    return value
-
-
-def _params(value: object) -> ParameterSet:
-    assert isinstance(value, ParameterSet), value
-    return value
-
-
-def _fraction(value: object) -> Fraction:
-    assert isinstance(value, Fraction), value
-    return value
-
-
-def _formulas(table: str) -> tuple[registry.Invariant, ...]:
-    """The registry invariants stored on ``table`` that are formulas of the parameters."""
-    return tuple(inv for inv in registry.stored_on(table) if inv.compute is not None)
 
 
 def _group(items: Iterable[tuple[object, ParameterSet]]) -> list[Members]:
@@ -414,7 +410,7 @@ def classify_area(
         p = readings[0][0]
         labels = tuple(r[0] for r in readings)
         values: dict[str, object] = {
-            **{inv.name: inv.of_class(labels) for inv in _formulas("classes")},
+            **{name: _over(rule, compute, labels) for name, rule, compute in _CLASS_FORMULAS},
             "automorphisms": int(form.automorphisms),  # nauty
             "reading_count": len(readings),
             "member_count": sum(len(r) for r in readings),
@@ -428,19 +424,19 @@ def classify_area(
                 fingerprint=form.fingerprint,
                 automorphisms=int(form.automorphisms),
                 readings=summaries,
-                loop=_int(values["loop"]),
-                states=_int(values["states"]),
-                state_arcs=_int(values["state_arcs"]),
-                tokens=_int(values["tokens"]),
-                enabled=_int(values["enabled"]),
-                semi_enabled=_int(values["semi_enabled"]),
-                cycle_time=_fraction(values["cycle_time"]),
+                loop=cast(int, values["loop"]),
+                states=cast(int, values["states"]),
+                state_arcs=cast(int, values["state_arcs"]),
+                tokens=cast(int, values["tokens"]),
+                enabled=cast(int, values["enabled"]),
+                semi_enabled=cast(int, values["semi_enabled"]),
+                cycle_time=cast(Fraction, values["cycle_time"]),
                 # Both depend on the typed structure, so the exceptional (2,-2) merges can join
                 # readings that differ here: a class is an n-fold iteration (or has a
                 # non-cyclic transition group) when one of its readings is (the registry's rule
                 # over readings, zoo.core.registry.LARGEST).
-                group_d1=_int(values["group_d1"]),
-                iteration=_int(values["iteration"]),
+                group_d1=cast(int, values["group_d1"]),
+                iteration=cast(int, values["iteration"]),
                 values=values,
             )
         )

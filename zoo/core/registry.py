@@ -24,6 +24,7 @@ from collections.abc import Callable, Mapping
 from dataclasses import dataclass
 from enum import Enum
 from fractions import Fraction
+from math import gcd
 from typing import Any
 
 from zoo.core import algebra, invariants
@@ -230,27 +231,27 @@ INVARIANTS: tuple[Invariant, ...] = (
               invariants.slowness, "slowness", "slowness in -1/5..1/3"),
     Invariant("forward_count", _R, _INT, "fwd cycles", "cycles",
               "forward cycles, gcd(β, δ) (docs/theory/processes.md)", "docs/theory/processes.md",
-              lambda p: invariants.forward_cycles(p).count, "forward_count", "forward_count >= 2",
+              invariants.process_count, "forward_count", "forward_count >= 2",
               json_key="forward_cycles.count"),
     Invariant("forward_length", _R, _INT, "fwd length", "transitions",
               "length of each forward cycle, A / gcd(β, δ)", "docs/theory/processes.md",
-              lambda p: invariants.forward_cycles(p).length, "forward_length",
+              lambda p: p.area // gcd(p.beta, p.delta), "forward_length",
               "forward_length < 10", json_key="forward_cycles.length"),
     Invariant("forward_tokens", _R, _INT, "fwd tokens", "tokens",
               "tokens on each forward cycle, β / gcd(β, δ)", "docs/theory/processes.md",
-              lambda p: invariants.forward_cycles(p).tokens, "forward_tokens",
+              lambda p: p.beta // gcd(p.beta, p.delta), "forward_tokens",
               "forward_tokens = 1", json_key="forward_cycles.tokens"),
     Invariant("backward_count", _R, _INT, "bwd cycles", "cycles",
               "backward cycles, gcd(α, γ) (docs/theory/processes.md)", "docs/theory/processes.md",
-              lambda p: invariants.backward_cycles(p).count, "backward_count",
+              lambda p: gcd(p.alpha, p.gamma), "backward_count",
               "backward_count = 1", json_key="backward_cycles.count"),
     Invariant("backward_length", _R, _INT, "bwd length", "transitions",
               "length of each backward cycle, A / gcd(α, γ)", "docs/theory/processes.md",
-              lambda p: invariants.backward_cycles(p).length, "backward_length",
+              lambda p: p.area // gcd(p.alpha, p.gamma), "backward_length",
               "backward_length != 12", json_key="backward_cycles.length"),
     Invariant("backward_tokens", _R, _INT, "bwd tokens", "tokens",
               "tokens on each backward cycle, α / gcd(α, γ)", "docs/theory/processes.md",
-              lambda p: invariants.backward_cycles(p).tokens, "backward_tokens",
+              lambda p: p.alpha // gcd(p.alpha, p.gamma), "backward_tokens",
               "backward_tokens > 1", json_key="backward_cycles.tokens"),
     Invariant("normal_form_beta_delta", _R, _TEXT, "NF_bd", "",
               "normal form by β- and δ-steps", "docs/theory/normal-forms.md",
