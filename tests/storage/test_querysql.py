@@ -39,6 +39,9 @@ from zoo.core.params import ParameterSet
 from zoo.errors import QuerySyntaxError
 from zoo.query.fields import FIELDS, Field, FieldType, Level
 from zoo.query.parser import (
+    MAX_CONDITIONS,
+    MAX_NESTING,
+    MAX_VALUES,
     And,
     BoolField,
     Comparison,
@@ -47,6 +50,7 @@ from zoo.query.parser import (
     Not,
     Or,
     Range,
+    Scoped,
     Value,
     parse_query,
 )
@@ -61,6 +65,7 @@ from zoo.storage.models import (
 from zoo.storage.querysql import column_clauses, compile_query, sort_clause
 
 FULL_AREAS = 12
+READING = "_reading"  # key of a member's reading id in CatalogData.members
 # Large classes: anonymous rings C(g, c, 1, 1) whose state counts C(c+g, c) pass 64 bits
 # (docs/theory/ring-designs.md table, first column).
 LARGE_LABELS = (
@@ -218,12 +223,22 @@ def build_catalog_data() -> CatalogData:
                         }
                     )
                     data.members[class_id].append(
-                        {**class_values, **reading_values, "gamma": p.gamma, "delta": p.delta}
+                        {
+                            **class_values,
+                            **reading_values,
+                            "gamma": p.gamma,
+                            "delta": p.delta,
+                            READING: reading_id,
+                        }
                     )
     return data
 
 
 DATA = build_catalog_data()
+MEMBERS_OF_READING: dict[Value, list[dict[str, Value]]] = defaultdict(list)
+for _members in DATA.members.values():
+    for _member in _members:
+        MEMBERS_OF_READING[_member[READING]].append(_member)
 
 
 def fill(engine: Engine) -> None:
@@ -253,6 +268,16 @@ _PYTHON_OPERATORS: dict[str, Callable[[Any, Any], bool]] = {
 
 def holds(node: Node, member: dict[str, Value]) -> bool:
     """Whether one member (parameter set with its reading and class) satisfies a tree."""
+    if isinstance(node, Scoped):
+        # A scope is decided on the member's class: its readings, or its members, one by one.
+        siblings = next(ms for ms in DATA.members.values() if member in ms)
+        if node.scope == "reading":
+            # Only class and reading fields occur, so a reading's first member stands for it.
+            units = [MEMBERS_OF_READING[r][0] for r in sorted({int(m[READING]) for m in siblings})]
+        else:
+            units = siblings
+        results = [holds(node.operand, unit) for unit in units]
+        return {"every": all, "some": any, "no": lambda rs: not any(rs)}[node.quantifier](results)
     if isinstance(node, And):
         return all(holds(o, member) for o in node.operands)
     if isinstance(node, Or):
@@ -592,3 +617,72 @@ def test_literals_past_32_bits_answer_alike_on_both_stores(
 ) -> None:
     tree = parse_query(query)
     assert run(postgres_engine, tree) == evaluate(tree) == run(sqlite_engine, tree)
+
+
+# --- queries at the size limits of the parser (issue 8) -------------------------------------
+
+
+def _chain(levels: int, width: int, inner: str, *, negate: bool = False) -> str:
+    """``levels`` nested parentheses, each holding a ``width``-term and/or chain around the next.
+
+    With ``negate`` each level is also negated ('not (...)'), two nesting levels per level.
+    """
+    text = inner
+    for level in range(levels):
+        joint = " and " if level % 2 else " or "
+        chain = joint.join(f"alpha != {level * width + k}" for k in range(width))
+        text = f"({chain}{joint}{'not ' if negate else ''}{text})"
+    return text
+
+
+def _limit_queries() -> list[str]:
+    values = ", ".join(str(v) for v in range(MAX_VALUES // 10 - 1))
+    fractions = ", ".join(f"{k}/{k + 1}" for k in range(MAX_VALUES // 10))
+    width = MAX_CONDITIONS // MAX_NESTING - 1
+    return [
+        # the four shapes of issue 8 (parentheses, not, or-chains, lists), each at its limit
+        "(" * MAX_NESTING + "regular and gamma > 1" + ")" * MAX_NESTING,
+        "not " * (MAX_NESTING - 1) + "(regular)",
+        " or ".join(f"processes = {k}" for k in range(MAX_CONDITIONS)),
+        " and ".join(f"alpha != {k}" for k in range(MAX_CONDITIONS)),
+        f"area in ({values}) and beta in ({values})",
+        " or ".join(f"slowness in ({fractions})" for _ in range(10)),
+        # the deepest SQL: full nesting, every level a long chain, inside a scope that itself
+        # stands inside the member subquery
+        _chain(MAX_NESTING - 1, width, "regular"),
+        _chain(MAX_NESTING // 2, width, "regular", negate=True),
+        "gamma = 1 and (every member "
+        + _chain(MAX_NESTING - 2, width, "delta > 2")
+        + " or regular)",
+        "delta != 1 and (no reading "
+        + _chain(MAX_NESTING // 2 - 1, width, "regular", negate=True)
+        + " or not regular)",
+    ]
+
+
+def test_limit_queries_reach_the_limits() -> None:
+    queries = _limit_queries()
+    for query in queries:
+        parse_query(query)  # within every limit
+    # ... and one more level, condition or value is refused
+    with pytest.raises(QuerySyntaxError, match="deeper than"):
+        parse_query("not " * (MAX_NESTING + 1) + "regular")
+    with pytest.raises(QuerySyntaxError, match="deeper than"):
+        parse_query("(" * (MAX_NESTING + 1) + "regular" + ")" * (MAX_NESTING + 1))
+    with pytest.raises(QuerySyntaxError, match="conditions"):
+        parse_query(" or ".join(["regular"] * (MAX_CONDITIONS + 1)))
+    with pytest.raises(QuerySyntaxError, match="values"):
+        parse_query(f"area in ({', '.join(['1'] * (MAX_VALUES + 1))})")
+
+
+@pytest.mark.parametrize("index", range(len(_limit_queries())))
+def test_queries_at_the_limits_run_on_sqlite(sqlite_engine: Engine, index: int) -> None:
+    tree = parse_query(_limit_queries()[index])
+    assert run(sqlite_engine, tree) == evaluate(tree)
+
+
+@pytest.mark.postgres
+@pytest.mark.parametrize("index", range(len(_limit_queries())))
+def test_queries_at_the_limits_run_on_postgresql(postgres_engine: Engine, index: int) -> None:
+    tree = parse_query(_limit_queries()[index])
+    assert run(postgres_engine, tree) == evaluate(tree)
