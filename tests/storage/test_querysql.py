@@ -66,6 +66,7 @@ from zoo.storage.querysql import column_clauses, compile_query, sort_clause
 
 FULL_AREAS = 12
 READING = "_reading"  # key of a member's reading id in CatalogData.members
+CLASS = "_class"  # key of a member's class id
 # Large classes: anonymous rings C(g, c, 1, 1) whose state counts C(c+g, c) pass 64 bits
 # (docs/theory/ring-designs.md table, first column).
 LARGE_LABELS = (
@@ -229,6 +230,7 @@ def build_catalog_data() -> CatalogData:
                             "gamma": p.gamma,
                             "delta": p.delta,
                             READING: reading_id,
+                            CLASS: class_id,
                         }
                     )
     return data
@@ -270,7 +272,7 @@ def holds(node: Node, member: dict[str, Value]) -> bool:
     """Whether one member (parameter set with its reading and class) satisfies a tree."""
     if isinstance(node, Scoped):
         # A scope is decided on the member's class: its readings, or its members, one by one.
-        siblings = next(ms for ms in DATA.members.values() if member in ms)
+        siblings = DATA.members[str(member[CLASS])]
         if node.scope == "reading":
             # Only class and reading fields occur, so a reading's first member stands for it.
             units = [MEMBERS_OF_READING[r][0] for r in sorted({int(m[READING]) for m in siblings})]
@@ -336,6 +338,7 @@ def values_for(field: Field) -> st.SearchStrategy[Value]:
 
 
 trees = query_trees(values_for, width=3, max_leaves=6)
+scoped_trees = query_trees(values_for, width=3, max_leaves=6, scopes=True)
 
 
 # --- tests ----------------------------------------------------------------------------------
@@ -686,3 +689,59 @@ def test_queries_at_the_limits_run_on_sqlite(sqlite_engine: Engine, index: int) 
 def test_queries_at_the_limits_run_on_postgresql(postgres_engine: Engine, index: int) -> None:
     tree = parse_query(_limit_queries()[index])
     assert run(postgres_engine, tree) == evaluate(tree)
+
+
+# --- scopes: every / some / no reading or member (issue 8) ----------------------------------
+
+
+@settings(max_examples=150, deadline=None)
+@given(tree=scoped_trees)
+def test_scopes_agree_with_python_evaluation_on_sqlite(sqlite_engine: Engine, tree: Node) -> None:
+    assert run(sqlite_engine, tree) == evaluate(tree)
+
+
+@pytest.mark.postgres
+@settings(
+    max_examples=40, deadline=None, suppress_health_check=[HealthCheck.function_scoped_fixture]
+)
+@given(tree=scoped_trees)
+def test_scopes_agree_with_python_evaluation_on_postgresql(
+    postgres_engine: Engine, tree: Node
+) -> None:
+    assert run(postgres_engine, tree) == evaluate(tree)
+
+
+SCOPE_QUERIES = [
+    "no reading (regular)",
+    "every reading (regular) and readings = 2",
+    "some reading (regular) and some reading (processes = 1)",
+    "not every reading (processes >= 2) and gamma = 1",
+    "no member (gamma = 1 or delta = 1) and area <= 10",
+    "every member (net_automorphisms > 4 and slowness >= 0)",
+    "processes = 2 and (no reading (regular) or every member (delta > 1))",
+]
+
+
+@pytest.mark.postgres
+@pytest.mark.parametrize("query", SCOPE_QUERIES)
+def test_named_scope_queries_on_both_stores(
+    sqlite_engine: Engine, postgres_engine: Engine, query: str
+) -> None:
+    tree = parse_query(query)
+    assert run(sqlite_engine, tree) == evaluate(tree) == run(postgres_engine, tree)
+
+
+def test_no_reading_is_the_difference_of_two_queries(sqlite_engine: Engine) -> None:
+    # What the docs once told users to do by hand: all classes minus those with a regular reading.
+    everything = run(sqlite_engine, parse_query("area >= 0"))
+    regular = run(sqlite_engine, parse_query("regular"))
+    none_regular = run(sqlite_engine, parse_query("no reading (regular)"))
+    assert none_regular == everything - regular
+    assert none_regular and regular - none_regular
+    # every reading (q) is no reading (not q)
+    assert run(sqlite_engine, parse_query("every reading (regular)")) == run(
+        sqlite_engine, parse_query("no reading (not regular)")
+    )
+    # classes whose two readings differ in regularity: some regular, but not every
+    split = run(sqlite_engine, parse_query("regular and not every reading (regular)"))
+    assert split == regular & run(sqlite_engine, parse_query("not regular"))
