@@ -18,6 +18,7 @@ docs/query-language.md: a class matches when one member parameter set satisfies 
 from __future__ import annotations
 
 import operator
+import random
 from collections import defaultdict
 from collections.abc import Callable, Iterator
 from dataclasses import dataclass
@@ -32,11 +33,12 @@ from hypothesis import strategies as st
 from sqlalchemy import Engine, create_engine, select
 from sqlalchemy.orm import Session
 
+from tests.query.test_fuzz import grammar_text, mutated_text
 from tests.query_trees import query_trees
 from zoo.catalog.enumeration import iter_parameter_sets
 from zoo.core import algebra, invariants
 from zoo.core.params import ParameterSet
-from zoo.errors import QuerySyntaxError
+from zoo.errors import QuerySyntaxError, ZooError
 from zoo.query.fields import FIELDS, Field, FieldType, Level
 from zoo.query.parser import (
     MAX_CONDITIONS,
@@ -745,3 +747,18 @@ def test_no_reading_is_the_difference_of_two_queries(sqlite_engine: Engine) -> N
     # classes whose two readings differ in regularity: some regular, but not every
     split = run(sqlite_engine, parse_query("regular and not every reading (regular)"))
     assert split == regular & run(sqlite_engine, parse_query("not regular"))
+
+
+# --- fuzzed texts through SQLite (the parse-only fuzz is tests/query/test_fuzz.py) ----------
+
+
+@settings(max_examples=200, deadline=None)
+@given(rng=st.randoms(use_true_random=False))
+def test_fuzzed_queries_that_parse_run_on_sqlite(sqlite_engine: Engine, rng: random.Random) -> None:
+    text = grammar_text(rng, budget=6)
+    for candidate in (text, mutated_text(rng, text)):
+        try:
+            tree = parse_query(candidate)
+        except ZooError:
+            continue
+        assert run(sqlite_engine, tree) == evaluate(tree)
