@@ -19,8 +19,8 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from zoo.errors import QuerySyntaxError, ZooError
-from zoo.query.fields import FIELDS
-from zoo.query.parser import QUANTIFIERS, SCOPES, parse_query
+from zoo.query.fields import FIELDS, FieldType
+from zoo.query.parser import COMPARISON_OPERATORS, QUANTIFIERS, SCOPES, parse_query
 
 _SPELLINGS = [s for f in FIELDS for s in f.spellings] + ["procesess", "reading", "Members", "x_1"]
 _NUMBERS = [
@@ -40,7 +40,23 @@ def _value(rng: random.Random) -> str:
     return rng.choice(_WORDS)
 
 
-def _condition(rng: random.Random) -> str:
+def _valid_condition(rng: random.Random) -> str:
+    field = rng.choice(FIELDS)
+    if field.type is FieldType.BOOLEAN:
+        return rng.choice([field.name, f"{field.name} = no", f"{field.name} != yes"])
+    low, high = sorted(rng.randint(-2, 40) for _ in range(2))
+    return rng.choice(
+        [
+            f"{rng.choice(field.spellings)} {rng.choice(COMPARISON_OPERATORS)} {low}",
+            f"{field.name} in {low}..{high}",
+            f"{field.name} in ({low}, {high}, {low + high})",
+        ]
+    )
+
+
+def _condition(rng: random.Random, valid: bool = False) -> str:
+    if valid:
+        return _valid_condition(rng)
     field = rng.choice(_SPELLINGS)
     kind = rng.randrange(4)
     if kind == 0:
@@ -52,20 +68,24 @@ def _condition(rng: random.Random) -> str:
     return f"{field} in ({', '.join(_value(rng) for _ in range(rng.randrange(7)))})"
 
 
-def grammar_text(rng: random.Random, budget: int = 10) -> str:
-    """A text from the grammar with random fields, values and keywords (mostly near-valid)."""
+def grammar_text(rng: random.Random, budget: int = 10, *, valid: bool = False) -> str:
+    """A text from the grammar with random fields, values and keywords (mostly near-valid).
+
+    With ``valid`` the conditions are well typed and joints are 'and'/'or', so most texts
+    parse (a scope may still nest or hold a parameter field in a reading scope).
+    """
     if budget <= 1 or rng.random() < 0.3:
-        return _condition(rng)
+        return _condition(rng, valid)
     kind = rng.randrange(4)
     if kind == 0:
-        return f"not {grammar_text(rng, budget - 1)}"
+        return f"not {grammar_text(rng, budget - 1, valid=valid)}"
     if kind == 1:
-        return f"({grammar_text(rng, budget - 1)})"
+        return f"({grammar_text(rng, budget - 1, valid=valid)})"
     if kind == 2:
-        inner = grammar_text(rng, budget - 1)
+        inner = grammar_text(rng, budget - 1, valid=valid)
         return f"{rng.choice(QUANTIFIERS)} {rng.choice(SCOPES)} ({inner})"
-    parts = [grammar_text(rng, budget // 2) for _ in range(rng.randint(2, 4))]
-    return rng.choice(_JOINTS).join(parts)
+    parts = [grammar_text(rng, budget // 2, valid=valid) for _ in range(rng.randint(2, 4))]
+    return rng.choice(_JOINTS[:4] if valid else _JOINTS).join(parts)
 
 
 def mutated_text(rng: random.Random, text: str) -> str:
@@ -104,7 +124,7 @@ def check_parse(text: str) -> None:
 @settings(max_examples=2_000, deadline=None)
 @given(rng=st.randoms(use_true_random=False))
 def test_ten_thousand_generated_queries_parse_or_raise_a_zoo_error(rng: random.Random) -> None:
-    text = grammar_text(rng)
+    text = grammar_text(rng, valid=rng.random() < 0.3)
     check_parse(text)
     for _ in range(4):
         check_parse(mutated_text(rng, text))

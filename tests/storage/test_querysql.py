@@ -755,7 +755,7 @@ def test_no_reading_is_the_difference_of_two_queries(sqlite_engine: Engine) -> N
 @settings(max_examples=200, deadline=None)
 @given(rng=st.randoms(use_true_random=False))
 def test_fuzzed_queries_that_parse_run_on_sqlite(sqlite_engine: Engine, rng: random.Random) -> None:
-    text = grammar_text(rng, budget=6)
+    text = grammar_text(rng, budget=6, valid=True)
     for candidate in (text, mutated_text(rng, text)):
         try:
             tree = parse_query(candidate)
