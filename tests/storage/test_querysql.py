@@ -64,7 +64,12 @@ from zoo.storage.models import (
     ReadingRecord,
     sortable_key,
 )
-from zoo.storage.querysql import column_clauses, compile_query, sort_clause
+from zoo.storage.querysql import (
+    column_clauses,
+    compile_query,
+    matched_readings_clause,
+    sort_clause,
+)
 
 FULL_AREAS = 12
 READING = "_reading"  # key of a member's reading id in CatalogData.members
@@ -518,8 +523,8 @@ def test_column_clauses_show_values_as_text(sqlite_engine: Engine) -> None:
             values = sorted({m[name] for m in members})
             if field.level is Level.CLASS or len(values) == 1:
                 expected.append(text(values[0]))
-            else:
-                expected.append(f"{text(values[0])}..{text(values[-1])}")
+            else:  # the set of values (issue 8: '1..3' would read as a range)
+                expected.append(", ".join(text(v) for v in values))
         assert list(rows[class_id]) == expected, class_id
 
 
@@ -593,6 +598,24 @@ def test_named_queries_on_postgresql(postgres_engine: Engine, query: str) -> Non
 
 
 @pytest.mark.postgres
+def test_columns_list_value_sets_alike_on_both_stores(
+    sqlite_engine: Engine, postgres_engine: Engine
+) -> None:
+    names = ["gamma", "delta", "processes", "slowness", "regular"]
+    statement = select(ClassRecord.id, *column_clauses(names))
+    answers = []
+    for engine in (sqlite_engine, postgres_engine):
+        with engine.connect() as connection:
+            answers.append({row[0]: tuple(row[1:]) for row in connection.execute(statement)})
+    assert answers[0] == answers[1]
+    many = [cid for cid, values in answers[0].items() if values[0].count(",") >= 2]
+    assert many  # classes whose members have three or more values of gamma
+    for cid in many:
+        gammas = sorted({int(m["gamma"]) for m in DATA.members[cid]})
+        assert answers[1][cid][0] == ", ".join(map(str, gammas))
+
+
+@pytest.mark.postgres
 def test_sort_and_columns_on_postgresql(postgres_engine: Engine) -> None:
     with postgres_engine.connect() as connection:
         ordered = list(
@@ -602,7 +625,7 @@ def test_sort_and_columns_on_postgresql(postgres_engine: Engine) -> None:
         slowness: dict[str, str] = {row[0]: row[1] for row in rows}
     assert ordered[0] == next(c["id"] for c in DATA.classes if c["area"] == 200)
     # C(2,1,1,1) and its swap C(1,2,1,1) have w = 1/3 and -1/3 (docs/theory/check-values.md table).
-    assert slowness[class_of(ParameterSet(2, 1, 1, 1))] == "-1/3..1/3"
+    assert slowness[class_of(ParameterSet(2, 1, 1, 1))] == "-1/3, 1/3"
 
 
 @pytest.mark.postgres
@@ -762,3 +785,45 @@ def test_fuzzed_queries_that_parse_run_on_sqlite(sqlite_engine: Engine, rng: ran
         except ZooError:
             continue
         assert run(sqlite_engine, tree) == evaluate(tree)
+
+
+# --- which reading matched (issue 8) --------------------------------------------------------
+
+
+def matched_in_python(node: Node, class_id: str) -> str:
+    """The normal forms of the readings holding a member that satisfies the tree."""
+    names = {row["id"]: row["nf_beta_delta"] for row in DATA.readings}
+    hits = {names[m[READING]] for m in DATA.members[class_id] if holds(node, m)}
+    return ", ".join(sorted(hits))
+
+
+@pytest.mark.postgres
+@pytest.mark.parametrize(
+    "query",
+    [
+        "processes = 3 and area < 20",
+        "regular and area <= 8",
+        "gamma = 2 or not regular",
+        "slowness > 0 and no reading (processes = 2)",
+    ],
+)
+def test_matched_readings_name_the_readings_that_matched(
+    sqlite_engine: Engine, postgres_engine: Engine, query: str
+) -> None:
+    tree = parse_query(query)
+    clause = matched_readings_clause(tree)
+    assert clause is not None
+    statement = compile_query(tree).add_columns(clause)
+    for engine in (sqlite_engine, postgres_engine):
+        with engine.connect() as connection:
+            rows = dict(connection.execute(statement).tuples().all())
+        assert set(rows) == evaluate(tree)
+        for class_id, matched in rows.items():
+            assert matched == matched_in_python(tree, class_id), class_id
+    # a class with two readings, one of them regular: only that one is named
+    split = [cid for cid in rows if len({m[READING] for m in DATA.members[cid]}) == 2]
+    assert split or "regular" not in query
+
+
+def test_matched_readings_is_none_for_class_level_queries() -> None:
+    assert matched_readings_clause(parse_query("area < 9 and every reading (regular)")) is None

@@ -367,9 +367,10 @@ def _text_expression(field: Field) -> ColumnElement[str]:
 def column_clause(field_name: str) -> Label[str]:
     """The value of a field for the class row of the enclosing statement, as labelled text.
 
-    Class-level fields give their value; reading- and parameter-level fields give the
-    smallest and largest value over the members, as ``low..high`` when they differ. The label
-    is the field's canonical name.
+    Class-level fields give their value; reading- and parameter-level fields give the set of
+    values over the readings or members, smallest first, as ``1, 3`` (never ``1..3``, which in
+    the query language means a range and would claim 2). The label is the field's canonical
+    name.
     """
     (name,) = parse_field_names(field_name)
     field = require_field(name)
@@ -380,11 +381,49 @@ def column_clause(field_name: str) -> Label[str]:
     order = _sort_expression(field)
     # Correlate only the class row: the enclosing statement may join frames itself.
     values = select(text).where(link).correlate(_CLASSES)
-    low = values.order_by(order.asc()).limit(1).scalar_subquery()
     if table is _FRAMES:
-        return low.label(field.name)
-    high = values.order_by(order.desc()).limit(1).scalar_subquery()
-    return case((low == high, low), else_=low + ".." + high).label(field.name)
+        return values.limit(1).scalar_subquery().label(field.name)
+    # Distinct values in order, then joined; both stores keep the order of an ordered subquery
+    # for a plain aggregate, and the tests check it on both.
+    distinct = (
+        select(text.label("value"), order.label("position"))
+        .where(link)
+        .distinct()
+        .order_by(order)
+        .correlate(_CLASSES)
+        .subquery()
+    )
+    joined = select(func.aggregate_strings(distinct.c.value, ", ")).scalar_subquery()
+    return joined.label(field.name)
+
+
+def matched_readings_clause(node: Node, label: str = "matched") -> Label[str] | None:
+    """Which readings of the class row made it match, as their labels (``C(1,3,1,3)``).
+
+    A class matches when one member satisfies the query (docs/query-language.md); this names
+    the readings holding such a member, by normal form, smallest first. None when the query
+    reads no reading or parameter-set field outside scopes: then every reading matches alike.
+    """
+    fields = _member_fields(node)
+    if all(f.level is Level.CLASS for f in fields):
+        return None
+    tables = frozenset().union(*(f.tables for f in fields))
+    members: FromClause = _READINGS
+    if "parameter_sets" in tables:
+        members = _READINGS.join(_PARAMETER_SETS, _PARAMETER_SETS.c.reading_id == _READINGS.c.id)
+    if "frames" in tables:
+        members = members.join(_FRAMES, _FRAMES.c.id == _CLASSES.c.frame_id)
+    name = _READINGS.c.nf_beta_delta
+    matched = (
+        select(name.label("value"))
+        .select_from(members)
+        .where(_READINGS.c.class_id == _CLASSES.c.id, compile_condition(node))
+        .distinct()
+        .order_by(name)
+        .correlate(_CLASSES)
+        .subquery()
+    )
+    return select(func.aggregate_strings(matched.c.value, ", ")).scalar_subquery().label(label)
 
 
 def column_clauses(field_names: Sequence[str]) -> list[Label[str]]:
@@ -392,4 +431,11 @@ def column_clauses(field_names: Sequence[str]) -> list[Label[str]]:
     return [column_clause(name) for name in field_names]
 
 
-__all__ = ["column_clause", "column_clauses", "compile_condition", "compile_query", "sort_clause"]
+__all__ = [
+    "column_clause",
+    "column_clauses",
+    "compile_condition",
+    "compile_query",
+    "matched_readings_clause",
+    "sort_clause",
+]
