@@ -191,6 +191,9 @@ class FindResult:
     #: CSV): class-level fields as their JSON value (int, bool, "num/den"), reading- and
     #: parameter-level fields as the sorted list of distinct values over the class's members.
     values: tuple[dict[str, object], ...] = ()
+    #: Per entry, the readings (normal forms) holding a member that satisfies the query; empty
+    #: when the query reads no reading or parameter-set field (every reading matches alike).
+    matched: tuple[str | None, ...] = ()
 
     def cell(self, index: int, name: str) -> str:
         """The typed value of a requested field as CSV text (``column_cell``)."""
@@ -496,6 +499,7 @@ class Catalog:
         ids, total = _query_class_ids(self.engine, node, sort, limit, seed)
         values = _column_values(self.engine, ids, columns or ())
         typed = _typed_column_values(self.engine, ids, columns or ())
+        matched = _matched_readings(self.engine, ids, node)
         with self.engine.connect() as connection:
             entries = self._entries(connection, ids)
         return FindResult(
@@ -507,6 +511,7 @@ class Catalog:
             columns=tuple(values.get(e.id, {}) for e in entries),
             location=self.url,
             values=tuple(typed.get(e.id, {}) for e in entries),
+            matched=tuple(matched[e.id] for e in entries) if matched else (),
         )
 
     def completeness_note(self, query: str) -> str:
@@ -805,6 +810,21 @@ def _query_count(engine: Engine, node: Any, seed: str | None) -> int:
         return int(
             connection.execute(select(func.count()).select_from(statement.subquery())).scalar_one()
         )
+
+
+def _matched_readings(engine: Engine, ids: Sequence[str], node: Any) -> dict[str, str | None]:
+    """Per class, the readings that made it match (querysql.matched_readings_clause), or {}."""
+    from zoo.storage.querysql import matched_readings_clause
+
+    clause = None if node is None else matched_readings_clause(node)
+    if clause is None or not ids:
+        return {}
+    found: dict[str, str | None] = {}
+    with engine.connect() as connection:
+        for chunk in _chunks(list(ids)):
+            rows = connection.execute(select(_CLASSES.c.id, clause).where(_CLASSES.c.id.in_(chunk)))
+            found.update({row[0]: row[1] for row in rows})
+    return found
 
 
 def _column_values(

@@ -379,7 +379,9 @@ def _print_find(result: FindResult, fmt: FindFormat, columns: Sequence[str] | No
         from rich.table import Table
 
         table = Table(show_header=True, header_style="bold", box=None, pad_edge=False)
-        for heading in ("id", "label", "area", *names, "members"):
+        # A query on reading fields says which reading matched (a class has one or two).
+        matched = ("matched reading",) if result.matched else ()
+        for heading in ("id", "label", "area", *names, "members", *matched):
             table.add_column(heading, no_wrap=True)
         for index, entry in enumerate(result.entries):
             table.add_row(
@@ -388,6 +390,7 @@ def _print_find(result: FindResult, fmt: FindFormat, columns: Sequence[str] | No
                 str(entry.area),
                 *(_cell(result, index, n, custom) for n in names if n != "members"),
                 _members_text(entry, short=True),
+                *((result.matched[index] or "",) if matched else ()),
             )
         console = _console()
         if result.entries:
