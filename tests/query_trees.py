@@ -10,14 +10,32 @@ from collections.abc import Callable
 
 from hypothesis import strategies as st
 
-from zoo.query.fields import FIELDS, Field, FieldType
-from zoo.query.parser import And, BoolField, Comparison, Membership, Node, Not, Or, Range, Value
+from zoo.query.fields import FIELDS, Field, FieldType, Level
+from zoo.query.parser import (
+    And,
+    BoolField,
+    Comparison,
+    Membership,
+    Node,
+    Not,
+    Or,
+    Range,
+    Scoped,
+    Value,
+    referenced_fields,
+)
 
 ValuesFor = Callable[[Field], st.SearchStrategy[Value]]
 
 
-def query_trees(values_for: ValuesFor, *, width: int, max_leaves: int) -> st.SearchStrategy[Node]:
-    """Trees of every node kind over every field; ``width`` bounds lists and operand counts."""
+def query_trees(
+    values_for: ValuesFor, *, width: int, max_leaves: int, scopes: bool = False
+) -> st.SearchStrategy[Node]:
+    """Trees of every node kind over every field; ``width`` bounds lists and operand counts.
+
+    With ``scopes`` a leaf may also be a scope (``every reading (...)``) around a scope-free
+    tree; a tree with parameter-set fields gets a member scope.
+    """
 
     @st.composite
     def leaves(draw: st.DrawFn) -> Node:
@@ -36,12 +54,25 @@ def query_trees(values_for: ValuesFor, *, width: int, max_leaves: int) -> st.Sea
             return Range(field.name, low, high)
         return Membership(field.name, tuple(draw(st.lists(values, min_size=1, max_size=width))))
 
-    return st.recursive(
-        leaves(),
-        lambda children: st.one_of(
-            children.map(Not),
-            st.lists(children, min_size=2, max_size=width).map(lambda ops: And(tuple(ops))),
-            st.lists(children, min_size=2, max_size=width).map(lambda ops: Or(tuple(ops))),
-        ),
-        max_leaves=max_leaves,
-    )
+    def grow(base: st.SearchStrategy[Node], leaves_at_most: int) -> st.SearchStrategy[Node]:
+        return st.recursive(
+            base,
+            lambda children: st.one_of(
+                children.map(Not),
+                st.lists(children, min_size=2, max_size=width).map(lambda ops: And(tuple(ops))),
+                st.lists(children, min_size=2, max_size=width).map(lambda ops: Or(tuple(ops))),
+            ),
+            max_leaves=leaves_at_most,
+        )
+
+    if not scopes:
+        return grow(leaves(), max_leaves)
+
+    @st.composite
+    def scoped(draw: st.DrawFn) -> Node:
+        operand = draw(grow(leaves(), max(1, max_leaves // 2)))
+        per_member = any(f.level is Level.PARAMETER_SET for f in referenced_fields(operand))
+        scope = "member" if per_member else draw(st.sampled_from(["reading", "member"]))
+        return Scoped(draw(st.sampled_from(["every", "some", "no"])), scope, operand)
+
+    return grow(leaves() | scoped(), max_leaves)

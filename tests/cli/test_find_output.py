@@ -117,3 +117,19 @@ def test_the_counts_are_member_count_and_reading_count(db: str) -> None:
     for line in jsonl.stdout.splitlines():
         item = json.loads(line)
         assert isinstance(item["members"], list) and isinstance(item["reading_count"], int)
+
+
+def test_processes_show_a_set_and_the_matched_reading_is_named(db: str) -> None:
+    # C(1,3,1,3): its readings have gcd(beta, delta) = 3 and 1 processes (docs/theory/processes.md);
+    # '1..3' would read as a range in the query language, so the column lists the set.
+    result = runner.invoke(app, ["find", "processes = 3 and area <= 6", "--db", db])
+    assert result.exit_code == 0, result.output
+    lines = result.stdout.splitlines()
+    assert "matched reading" in lines[0]
+    (row,) = [line for line in lines if "C(1,3,1,3)" in line or "C(3,1,3,1)" in line]
+    assert " 1, 3 " in row and ".." not in row
+    # the matched reading is the one with 3 processes: beta = 3 forward tokens, delta = 3
+    assert row.rstrip().endswith("C(1,3,1,3)")
+    # a query on class fields alone names no reading
+    plain = runner.invoke(app, ["find", "area = 6", "--db", db]).stdout.splitlines()
+    assert "matched reading" not in plain[0]

@@ -14,7 +14,10 @@ from zoo.errors import QuerySyntaxError
 from zoo.query.docs import REGENERATE_COMMAND, render_query_docs
 from zoo.query.fields import FIELDS, Field, FieldType, Level, field_named
 from zoo.query.parser import (
+    MAX_CONDITIONS,
     MAX_FRACTION_PART,
+    MAX_NESTING,
+    MAX_VALUES,
     And,
     BoolField,
     Comparison,
@@ -23,6 +26,7 @@ from zoo.query.parser import (
     Not,
     Or,
     Range,
+    Scoped,
     SortKey,
     Value,
     iter_conditions,
@@ -59,6 +63,7 @@ def values_for(field: Field) -> st.SearchStrategy[Value]:
 
 
 trees = query_trees(values_for, width=4, max_leaves=12)
+scoped_trees = query_trees(values_for, width=3, max_leaves=8, scopes=True)
 
 
 @settings(max_examples=250, deadline=None)
@@ -403,6 +408,36 @@ def test_referenced_area_bound(text: str, bound: int | None) -> None:
     assert referenced_area_bound(parse_query(text)) == bound
 
 
+def possible(node: Node, want: bool, area: int) -> bool:
+    """Whether some assignment of the non-area conditions makes node evaluate to want."""
+    if isinstance(node, Not):
+        return possible(node.operand, not want, area)
+    if isinstance(node, Scoped):
+        # area is the same on every reading and member: a scope is its operand ('no': negated)
+        return possible(node.operand, want != (node.quantifier == "no"), area)
+    if isinstance(node, And | Or):
+        need_all = isinstance(node, And) == want
+        checks = [possible(o, want, area) for o in node.operands]
+        return all(checks) if need_all else any(checks)
+    if node.field != "area":
+        return True
+    if isinstance(node, Range):
+        truth = node.low <= area <= node.high
+    elif isinstance(node, Membership):
+        truth = area in node.values
+    else:
+        assert isinstance(node, Comparison)
+        truth = {
+            "=": area == node.value,
+            "!=": area != node.value,
+            "<": area < node.value,
+            "<=": area <= node.value,
+            ">": area > node.value,
+            ">=": area >= node.value,
+        }[node.op]
+    return truth == want
+
+
 @settings(max_examples=200, deadline=None)
 @given(tree=trees, area=st.integers(1, 400))
 def test_area_bound_is_sound(tree: Node, area: int) -> None:
@@ -411,34 +446,109 @@ def test_area_bound_is_sound(tree: Node, area: int) -> None:
     bound = referenced_area_bound(tree)
     if bound is None or area <= bound:
         return
+    assert not possible(tree, True, area)
 
-    def possible(node: Node, want: bool) -> bool:
-        """Whether some assignment of the non-area conditions makes node evaluate to want."""
-        if isinstance(node, Not):
-            return possible(node.operand, not want)
-        if isinstance(node, And | Or):
-            need_all = isinstance(node, And) == want
-            checks = [possible(o, want) for o in node.operands]
-            return all(checks) if need_all else any(checks)
-        if node.field != "area":
-            return True
-        if isinstance(node, Range):
-            truth = node.low <= area <= node.high
-        elif isinstance(node, Membership):
-            truth = area in node.values
-        else:
-            assert isinstance(node, Comparison)
-            truth = {
-                "=": area == node.value,
-                "!=": area != node.value,
-                "<": area < node.value,
-                "<=": area <= node.value,
-                ">": area > node.value,
-                ">=": area >= node.value,
-            }[node.op]
-        return truth == want
 
-    assert not possible(tree, True)
+@settings(max_examples=150, deadline=None)
+@given(tree=scoped_trees, area=st.integers(1, 400))
+def test_area_bound_is_sound_with_scopes(tree: Node, area: int) -> None:
+    bound = referenced_area_bound(tree)
+    if bound is None or area <= bound:
+        return
+    assert not possible(tree, True, area)
+
+
+@settings(max_examples=150, deadline=None)
+@given(tree=scoped_trees)
+def test_scopes_render_then_parse_to_the_same_tree(tree: Node) -> None:
+    text = tree.render()
+    assert parse_query(text) == tree
+    assert parse_query(text).render() == text
+
+
+@pytest.mark.parametrize(
+    ("text", "message", "caret"),
+    [
+        (
+            "every reading (delta = 1)",
+            "Field 'delta' differs between the parameter sets of one reading; inside 'every "
+            "reading (...)' use class and reading fields, or write 'every member (...)'",
+            "every reading (delta = 1)\n               ^",
+        ),
+        (
+            "regular and no member (some reading (regular))",
+            "Scopes do not nest: 'some' stands inside the scope opened by 'no' at position 12; "
+            "write them side by side, joined with 'and' or 'or'",
+            "regular and no member (some reading (regular))\n                       ^",
+        ),
+        (
+            "every readings (regular)",
+            "Expected 'reading' or 'member' after 'every', found 'readings'; write 'every "
+            "reading (regular)' or 'every member (gamma = 1)'",
+            "every readings (regular)\n      ^",
+        ),
+        (
+            "some member regular",
+            "Expected '(' after 'some member', found 'regular'; write 'some reading (regular)' "
+            "or 'some member (gamma = 1)'",
+            "some member regular\n            ^",
+        ),
+        ("no = 1", "Expected a field name, found 'no'", "no = 1\n^"),
+    ],
+)
+def test_scope_errors_are_pinned(text: str, message: str, caret: str) -> None:
+    with pytest.raises(QuerySyntaxError) as info:
+        parse_query(text)
+    assert str(info.value) == message
+    assert info.value.caret_text() == caret
+
+
+def test_scope_syntax_and_meaning_of_no() -> None:
+    tree = parse_query("NO Reading (regular) and no member (γ = 1 or regular = no)")
+    assert tree == And(
+        (
+            Scoped("no", "reading", BoolField("regular")),
+            Scoped(
+                "no", "member", Or((Comparison("gamma", "=", 1), Comparison("regular", "=", False)))
+            ),
+        )
+    )
+    # 'no' still reads as a yes/no value after a comparison
+    assert parse_query("regular = no") == Comparison("regular", "=", False)
+
+
+@pytest.mark.parametrize(
+    ("text", "position"),
+    [
+        ("(" * (MAX_NESTING + 1) + "regular" + ")" * (MAX_NESTING + 1), MAX_NESTING),
+        ("not " * (MAX_NESTING + 1) + "regular", 4 * MAX_NESTING),
+        (
+            "every reading " + "(" * (MAX_NESTING + 1) + "regular" + ")" * (MAX_NESTING + 1),
+            14 + MAX_NESTING,
+        ),
+        (" or ".join(["regular"] * (MAX_CONDITIONS + 1)), 11 * MAX_CONDITIONS),
+        ("area in (" + "1, " * MAX_VALUES + "1)", 9 + 3 * MAX_VALUES),
+    ],
+)
+def test_size_limits_name_the_limit_with_a_caret(text: str, position: int) -> None:
+    with pytest.raises(QuerySyntaxError) as info:
+        parse_query(text)
+    message = str(info.value)
+    assert any(str(n) in message for n in (MAX_NESTING, MAX_CONDITIONS, MAX_VALUES))
+    assert info.value.position == position
+
+
+def test_no_input_reaches_python_recursion() -> None:
+    # Far past every limit, in every nesting form: refused with one QuerySyntaxError.
+    for text in (
+        "(" * 100_000,
+        "not " * 100_000 + "regular",
+        "every reading (" * 10_000,
+        "(" * 50_000 + ")" * 50_000,
+        "area in (" + "1," * 200_000,
+    ):
+        with pytest.raises(QuerySyntaxError):
+            parse_query(text)
 
 
 # --- the registry and its documentation -----------------------------------------------------

@@ -18,6 +18,7 @@ docs/query-language.md: a class matches when one member parameter set satisfies 
 from __future__ import annotations
 
 import operator
+import random
 from collections import defaultdict
 from collections.abc import Callable, Iterator
 from dataclasses import dataclass
@@ -32,13 +33,17 @@ from hypothesis import strategies as st
 from sqlalchemy import Engine, create_engine, select
 from sqlalchemy.orm import Session
 
+from tests.query.test_fuzz import grammar_text, mutated_text
 from tests.query_trees import query_trees
 from zoo.catalog.enumeration import iter_parameter_sets
 from zoo.core import algebra, invariants
 from zoo.core.params import ParameterSet
-from zoo.errors import QuerySyntaxError
+from zoo.errors import QuerySyntaxError, ZooError
 from zoo.query.fields import FIELDS, Field, FieldType, Level
 from zoo.query.parser import (
+    MAX_CONDITIONS,
+    MAX_NESTING,
+    MAX_VALUES,
     And,
     BoolField,
     Comparison,
@@ -47,6 +52,7 @@ from zoo.query.parser import (
     Not,
     Or,
     Range,
+    Scoped,
     Value,
     parse_query,
 )
@@ -58,9 +64,16 @@ from zoo.storage.models import (
     ReadingRecord,
     sortable_key,
 )
-from zoo.storage.querysql import column_clauses, compile_query, sort_clause
+from zoo.storage.querysql import (
+    column_clauses,
+    compile_query,
+    matched_readings_clause,
+    sort_clause,
+)
 
 FULL_AREAS = 12
+READING = "_reading"  # key of a member's reading id in CatalogData.members
+CLASS = "_class"  # key of a member's class id
 # Large classes: anonymous rings C(g, c, 1, 1) whose state counts C(c+g, c) pass 64 bits
 # (docs/theory/ring-designs.md table, first column).
 LARGE_LABELS = (
@@ -218,12 +231,23 @@ def build_catalog_data() -> CatalogData:
                         }
                     )
                     data.members[class_id].append(
-                        {**class_values, **reading_values, "gamma": p.gamma, "delta": p.delta}
+                        {
+                            **class_values,
+                            **reading_values,
+                            "gamma": p.gamma,
+                            "delta": p.delta,
+                            READING: reading_id,
+                            CLASS: class_id,
+                        }
                     )
     return data
 
 
 DATA = build_catalog_data()
+MEMBERS_OF_READING: dict[Value, list[dict[str, Value]]] = defaultdict(list)
+for _members in DATA.members.values():
+    for _member in _members:
+        MEMBERS_OF_READING[_member[READING]].append(_member)
 
 
 def fill(engine: Engine) -> None:
@@ -253,6 +277,16 @@ _PYTHON_OPERATORS: dict[str, Callable[[Any, Any], bool]] = {
 
 def holds(node: Node, member: dict[str, Value]) -> bool:
     """Whether one member (parameter set with its reading and class) satisfies a tree."""
+    if isinstance(node, Scoped):
+        # A scope is decided on the member's class: its readings, or its members, one by one.
+        siblings = DATA.members[str(member[CLASS])]
+        if node.scope == "reading":
+            # Only class and reading fields occur, so a reading's first member stands for it.
+            units = [MEMBERS_OF_READING[r][0] for r in sorted({int(m[READING]) for m in siblings})]
+        else:
+            units = siblings
+        results = [holds(node.operand, unit) for unit in units]
+        return {"every": all, "some": any, "no": lambda rs: not any(rs)}[node.quantifier](results)
     if isinstance(node, And):
         return all(holds(o, member) for o in node.operands)
     if isinstance(node, Or):
@@ -311,6 +345,7 @@ def values_for(field: Field) -> st.SearchStrategy[Value]:
 
 
 trees = query_trees(values_for, width=3, max_leaves=6)
+scoped_trees = query_trees(values_for, width=3, max_leaves=6, scopes=True)
 
 
 # --- tests ----------------------------------------------------------------------------------
@@ -488,8 +523,8 @@ def test_column_clauses_show_values_as_text(sqlite_engine: Engine) -> None:
             values = sorted({m[name] for m in members})
             if field.level is Level.CLASS or len(values) == 1:
                 expected.append(text(values[0]))
-            else:
-                expected.append(f"{text(values[0])}..{text(values[-1])}")
+            else:  # the set of values (issue 8: '1..3' would read as a range)
+                expected.append(", ".join(text(v) for v in values))
         assert list(rows[class_id]) == expected, class_id
 
 
@@ -563,6 +598,24 @@ def test_named_queries_on_postgresql(postgres_engine: Engine, query: str) -> Non
 
 
 @pytest.mark.postgres
+def test_columns_list_value_sets_alike_on_both_stores(
+    sqlite_engine: Engine, postgres_engine: Engine
+) -> None:
+    names = ["gamma", "delta", "processes", "slowness", "regular"]
+    statement = select(ClassRecord.id, *column_clauses(names))
+    answers = []
+    for engine in (sqlite_engine, postgres_engine):
+        with engine.connect() as connection:
+            answers.append({row[0]: tuple(row[1:]) for row in connection.execute(statement)})
+    assert answers[0] == answers[1]
+    many = [cid for cid, values in answers[0].items() if values[0].count(",") >= 2]
+    assert many  # classes whose members have three or more values of gamma
+    for cid in many:
+        gammas = sorted({int(m["gamma"]) for m in DATA.members[cid]})
+        assert answers[1][cid][0] == ", ".join(map(str, gammas))
+
+
+@pytest.mark.postgres
 def test_sort_and_columns_on_postgresql(postgres_engine: Engine) -> None:
     with postgres_engine.connect() as connection:
         ordered = list(
@@ -572,7 +625,7 @@ def test_sort_and_columns_on_postgresql(postgres_engine: Engine) -> None:
         slowness: dict[str, str] = {row[0]: row[1] for row in rows}
     assert ordered[0] == next(c["id"] for c in DATA.classes if c["area"] == 200)
     # C(2,1,1,1) and its swap C(1,2,1,1) have w = 1/3 and -1/3 (docs/theory/check-values.md table).
-    assert slowness[class_of(ParameterSet(2, 1, 1, 1))] == "-1/3..1/3"
+    assert slowness[class_of(ParameterSet(2, 1, 1, 1))] == "-1/3, 1/3"
 
 
 @pytest.mark.postgres
@@ -592,3 +645,185 @@ def test_literals_past_32_bits_answer_alike_on_both_stores(
 ) -> None:
     tree = parse_query(query)
     assert run(postgres_engine, tree) == evaluate(tree) == run(sqlite_engine, tree)
+
+
+# --- queries at the size limits of the parser (issue 8) -------------------------------------
+
+
+def _chain(levels: int, width: int, inner: str, *, negate: bool = False) -> str:
+    """``levels`` nested parentheses, each holding a ``width``-term and/or chain around the next.
+
+    With ``negate`` each level is also negated ('not (...)'), two nesting levels per level.
+    """
+    text = inner
+    for level in range(levels):
+        joint = " and " if level % 2 else " or "
+        chain = joint.join(f"alpha != {level * width + k}" for k in range(width))
+        text = f"({chain}{joint}{'not ' if negate else ''}{text})"
+    return text
+
+
+def _limit_queries() -> list[str]:
+    values = ", ".join(str(v) for v in range(MAX_VALUES // 10 - 1))
+    fractions = ", ".join(f"{k}/{k + 1}" for k in range(MAX_VALUES // 10))
+    width = MAX_CONDITIONS // MAX_NESTING - 1
+    return [
+        # the four shapes of issue 8 (parentheses, not, or-chains, lists), each at its limit
+        "(" * MAX_NESTING + "regular and gamma > 1" + ")" * MAX_NESTING,
+        "not " * (MAX_NESTING - 1) + "(regular)",
+        " or ".join(f"processes = {k}" for k in range(MAX_CONDITIONS)),
+        " and ".join(f"alpha != {k}" for k in range(MAX_CONDITIONS)),
+        f"area in ({values}) and beta in ({values})",
+        " or ".join(f"slowness in ({fractions})" for _ in range(10)),
+        # the deepest SQL: full nesting, every level a long chain, inside a scope that itself
+        # stands inside the member subquery
+        _chain(MAX_NESTING - 1, width, "regular"),
+        _chain(MAX_NESTING // 2, width, "regular", negate=True),
+        "gamma = 1 and (every member "
+        + _chain(MAX_NESTING - 2, width, "delta > 2")
+        + " or regular)",
+        "delta != 1 and (no reading "
+        + _chain(MAX_NESTING // 2 - 1, width, "regular", negate=True)
+        + " or not regular)",
+    ]
+
+
+def test_limit_queries_reach_the_limits() -> None:
+    queries = _limit_queries()
+    for query in queries:
+        parse_query(query)  # within every limit
+    # ... and one more level, condition or value is refused
+    with pytest.raises(QuerySyntaxError, match="deeper than"):
+        parse_query("not " * (MAX_NESTING + 1) + "regular")
+    with pytest.raises(QuerySyntaxError, match="deeper than"):
+        parse_query("(" * (MAX_NESTING + 1) + "regular" + ")" * (MAX_NESTING + 1))
+    with pytest.raises(QuerySyntaxError, match="conditions"):
+        parse_query(" or ".join(["regular"] * (MAX_CONDITIONS + 1)))
+    with pytest.raises(QuerySyntaxError, match="values"):
+        parse_query(f"area in ({', '.join(['1'] * (MAX_VALUES + 1))})")
+
+
+@pytest.mark.parametrize("index", range(len(_limit_queries())))
+def test_queries_at_the_limits_run_on_sqlite(sqlite_engine: Engine, index: int) -> None:
+    tree = parse_query(_limit_queries()[index])
+    assert run(sqlite_engine, tree) == evaluate(tree)
+
+
+@pytest.mark.postgres
+@pytest.mark.parametrize("index", range(len(_limit_queries())))
+def test_queries_at_the_limits_run_on_postgresql(postgres_engine: Engine, index: int) -> None:
+    tree = parse_query(_limit_queries()[index])
+    assert run(postgres_engine, tree) == evaluate(tree)
+
+
+# --- scopes: every / some / no reading or member (issue 8) ----------------------------------
+
+
+@settings(max_examples=150, deadline=None)
+@given(tree=scoped_trees)
+def test_scopes_agree_with_python_evaluation_on_sqlite(sqlite_engine: Engine, tree: Node) -> None:
+    assert run(sqlite_engine, tree) == evaluate(tree)
+
+
+@pytest.mark.postgres
+@settings(
+    max_examples=40, deadline=None, suppress_health_check=[HealthCheck.function_scoped_fixture]
+)
+@given(tree=scoped_trees)
+def test_scopes_agree_with_python_evaluation_on_postgresql(
+    postgres_engine: Engine, tree: Node
+) -> None:
+    assert run(postgres_engine, tree) == evaluate(tree)
+
+
+SCOPE_QUERIES = [
+    "no reading (regular)",
+    "every reading (regular) and readings = 2",
+    "some reading (regular) and some reading (processes = 1)",
+    "not every reading (processes >= 2) and gamma = 1",
+    "no member (gamma = 1 or delta = 1) and area <= 10",
+    "every member (net_automorphisms > 4 and slowness >= 0)",
+    "processes = 2 and (no reading (regular) or every member (delta > 1))",
+]
+
+
+@pytest.mark.postgres
+@pytest.mark.parametrize("query", SCOPE_QUERIES)
+def test_named_scope_queries_on_both_stores(
+    sqlite_engine: Engine, postgres_engine: Engine, query: str
+) -> None:
+    tree = parse_query(query)
+    assert run(sqlite_engine, tree) == evaluate(tree) == run(postgres_engine, tree)
+
+
+def test_no_reading_is_the_difference_of_two_queries(sqlite_engine: Engine) -> None:
+    # What the docs once told users to do by hand: all classes minus those with a regular reading.
+    everything = run(sqlite_engine, parse_query("area >= 0"))
+    regular = run(sqlite_engine, parse_query("regular"))
+    none_regular = run(sqlite_engine, parse_query("no reading (regular)"))
+    assert none_regular == everything - regular
+    assert none_regular and regular - none_regular
+    # every reading (q) is no reading (not q)
+    assert run(sqlite_engine, parse_query("every reading (regular)")) == run(
+        sqlite_engine, parse_query("no reading (not regular)")
+    )
+    # classes whose two readings differ in regularity: some regular, but not every
+    split = run(sqlite_engine, parse_query("regular and not every reading (regular)"))
+    assert split == regular & run(sqlite_engine, parse_query("not regular"))
+
+
+# --- fuzzed texts through SQLite (the parse-only fuzz is tests/query/test_fuzz.py) ----------
+
+
+@settings(max_examples=200, deadline=None)
+@given(rng=st.randoms(use_true_random=False))
+def test_fuzzed_queries_that_parse_run_on_sqlite(sqlite_engine: Engine, rng: random.Random) -> None:
+    text = grammar_text(rng, budget=6, valid=True)
+    for candidate in (text, mutated_text(rng, text)):
+        try:
+            tree = parse_query(candidate)
+        except ZooError:
+            continue
+        assert run(sqlite_engine, tree) == evaluate(tree)
+
+
+# --- which reading matched (issue 8) --------------------------------------------------------
+
+
+def matched_in_python(node: Node, class_id: str) -> str:
+    """The normal forms of the readings holding a member that satisfies the tree."""
+    names = {row["id"]: row["nf_beta_delta"] for row in DATA.readings}
+    hits = {names[m[READING]] for m in DATA.members[class_id] if holds(node, m)}
+    return ", ".join(sorted(hits))
+
+
+@pytest.mark.postgres
+@pytest.mark.parametrize(
+    "query",
+    [
+        "processes = 3 and area < 20",
+        "regular and area <= 8",
+        "gamma = 2 or not regular",
+        "slowness > 0 and no reading (processes = 2)",
+    ],
+)
+def test_matched_readings_name_the_readings_that_matched(
+    sqlite_engine: Engine, postgres_engine: Engine, query: str
+) -> None:
+    tree = parse_query(query)
+    clause = matched_readings_clause(tree)
+    assert clause is not None
+    statement = compile_query(tree).add_columns(clause)
+    for engine in (sqlite_engine, postgres_engine):
+        with engine.connect() as connection:
+            rows = dict(connection.execute(statement).tuples().all())
+        assert set(rows) == evaluate(tree)
+        for class_id, matched in rows.items():
+            assert matched == matched_in_python(tree, class_id), class_id
+    # a class with two readings, one of them regular: only that one is named
+    split = [cid for cid in rows if len({m[READING] for m in DATA.members[cid]}) == 2]
+    assert split or "regular" not in query
+
+
+def test_matched_readings_is_none_for_class_level_queries() -> None:
+    assert matched_readings_clause(parse_query("area < 9 and every reading (regular)")) is None

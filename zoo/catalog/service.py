@@ -80,6 +80,9 @@ class FindResult:
     #: CSV): class-level fields as their JSON value (int, bool, "num/den"), reading- and
     #: parameter-level fields as the sorted list of distinct values over the class's members.
     values: tuple[dict[str, object], ...] = ()
+    #: Per entry, the readings (normal forms) holding a member that satisfies the query; empty
+    #: when the query reads no reading or parameter-set field (every reading matches alike).
+    matched: tuple[str | None, ...] = ()
 
     # A result is the sequence of its entries: ``result[0]``, ``len(result)``, ``for e in result``.
     def __len__(self) -> int:
@@ -429,6 +432,7 @@ class Catalog:
             values = reader.column_texts(ids, names)
             typed = reader.column_values(ids, names)
             entries = reader.entries(ids)
+            matched = reader.matched_readings(ids, node)
             complete_to = _complete_prefix(reader.complete_areas())
         return FindResult(
             query=query,
@@ -439,6 +443,7 @@ class Catalog:
             columns=tuple(values.get(e.id, {}) for e in entries),
             location=self.url,
             values=tuple(typed.get(e.id, {}) for e in entries),
+            matched=tuple(matched[e.id] for e in entries) if matched else (),
         )
 
     def completeness_note(self, query: str) -> str:

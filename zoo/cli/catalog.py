@@ -351,7 +351,7 @@ def _default_value(entry: ClassEntry, name: str) -> str:
         return entry.frame_id
     if name == "processes":
         values = sorted({int(str(r["processes"])) for r in entry.readings})
-        return str(values[0]) if len(values) == 1 else f"{values[0]}..{values[-1]}"
+        return ", ".join(map(str, values))  # a set: '1..3' would read as a range
     value = entry.invariants.get(name)
     return "" if value is None else str(value)
 
@@ -378,7 +378,9 @@ def _print_find(result: FindResult, fmt: FindFormat, columns: Sequence[str] | No
         from rich.table import Table
 
         table = Table(show_header=True, header_style="bold", box=None, pad_edge=False)
-        for heading in ("id", "label", "area", *names, "members"):
+        # A query on reading fields says which reading matched (a class has one or two).
+        matched = ("matched reading",) if result.matched else ()
+        for heading in ("id", "label", "area", *names, "members", *matched):
             table.add_column(heading, no_wrap=True)
         for index, entry in enumerate(result.entries):
             table.add_row(
@@ -387,6 +389,7 @@ def _print_find(result: FindResult, fmt: FindFormat, columns: Sequence[str] | No
                 str(entry.area),
                 *(_cell(result, index, n, custom) for n in names),
                 _members_text(entry, short=True),
+                *((result.matched[index] or "",) if matched else ()),
             )
         console = _console()
         if result.entries:

@@ -13,7 +13,14 @@ from __future__ import annotations
 
 from zoo.errors import QuerySyntaxError
 from zoo.query.fields import Level, render_field_table
-from zoo.query.parser import MAX_DIGITS, grammar_rules, parse_query
+from zoo.query.parser import (
+    MAX_CONDITIONS,
+    MAX_DIGITS,
+    MAX_NESTING,
+    MAX_VALUES,
+    grammar_rules,
+    parse_query,
+)
 
 #: The command that rewrites the page (named on the page itself and by the docs test).
 REGENERATE_COMMAND = ".venv/bin/python -m zoo.query.docs > docs/query-language.md"
@@ -42,6 +49,12 @@ _QUERY_EXAMPLES = (
         "not regular and area in (12, 16, 20)",
         "classes of area 12, 16 or 20 with a reading that is not regular",
     ),
+    (
+        "no reading (regular) and area <= 12",
+        "classes of area up to 12 none of whose readings is regular",
+    ),
+    ("every reading (processes >= 2)", "classes all of whose readings have two or more processes"),
+    ("some member (γ = 1) and no member (δ = 1)", "a member with γ = 1 but none with δ = 1"),
 )
 
 _ERROR_EXAMPLES = (
@@ -51,6 +64,8 @@ _ERROR_EXAMPLES = (
     "area in 20..10",
     "(processes = 3 and area < 100",
     "area <",
+    "every reading (gamma = 1)",
+    "not " * (MAX_NESTING + 1) + "regular",
 )
 
 
@@ -127,9 +142,34 @@ def render_query_docs() -> str:
         "",
         "`not` is evaluated per member too: `not regular` matches a class with at least one "
         "reading that is not regular. A class whose two readings differ matches both "
-        "`regular` and `not regular`. To ask for classes none of whose readings is regular, "
-        "use a class-level property where one exists, or compare the results of the two "
-        "queries.",
+        "`regular` and `not regular`. To ask about all readings of a class, or none, use a "
+        "scope.",
+        "",
+        "## Scopes: every, some, no",
+        "",
+        "A scope evaluates a query on each reading, or on each member parameter set, of a "
+        "class on its own, and turns the answers into one yes/no value of the class:",
+        "",
+        "| scope | a class matches when | example |",
+        "|---|---|---|",
+        "| `every reading (q)` | q holds on each of its readings | `every reading (regular)` |",
+        "| `some reading (q)` | q holds on at least one of its readings | "
+        "`some reading (processes = 3)` |",
+        "| `no reading (q)` | q holds on none of its readings | `no reading (regular)` |",
+        "| `every member (q)`, `some member (q)`, `no member (q)` | the same over its member "
+        "parameter sets | `no member (gamma = 1)` |",
+        "",
+        "Beside the per-member rule above: `not regular` asks for *a* reading that is not "
+        "regular, `no reading (regular)` for a class none of whose readings is regular, and "
+        "`every reading (regular)` for a class all of whose readings are. A scope is a "
+        "class-level condition, so it combines with anything: in "
+        "`no reading (regular) and processes = 2`, the scope is decided on the whole class, "
+        "and `processes = 2` on one member as usual. `some reading (q)` matches the same "
+        "classes as `q` alone when q is a reading condition; it keeps a condition apart from "
+        "the rest of the query: `some reading (regular) and some reading (processes = 1)` "
+        "lets the two conditions hold on different readings, `regular and processes = 1` "
+        "does not. Inside a reading scope only class and reading fields may occur (γ and δ "
+        "differ between the members of one reading: use a member scope); scopes do not nest.",
         "",
         "## Fields",
         "",
@@ -151,8 +191,10 @@ def render_query_docs() -> str:
         "integers sort numerically. Fractions sort by value. A reading- or parameter-level "
         "field sorts a class by its smallest value among the members (largest when "
         "descending). Ties keep catalog order (area, then rank). The same field names select "
-        "columns; a reading- or parameter-level column shows the smallest and largest value "
-        "over the members, as `low..high` when they differ.",
+        "columns; a reading- or parameter-level column shows the set of its values over the "
+        "readings or members, smallest first, as `1, 3` (not `1..3`, which in a query means "
+        "a range). When a query reads a reading or parameter-set field, `zoo find` names the "
+        "readings that made each class match (column `matched reading`, by normal form).",
         "",
         "## Errors",
         "",
@@ -168,6 +210,20 @@ def render_query_docs() -> str:
         else:  # pragma: no cover - guarded by the docs test
             raise AssertionError(f"documentation example {example!r} parses")
     sections += [
+        "## Size limits",
+        "",
+        f"* At most {MAX_NESTING} levels of nesting: each `(` (a scope's included) and each "
+        "`not` opens one.",
+        f"* At most {MAX_CONDITIONS} conditions (comparisons, ranges, lists, bare yes/no "
+        "fields) in one query.",
+        f"* At most {MAX_VALUES} values in one query, the values of every list counted: "
+        f"`area in (...)` may list {MAX_VALUES} areas.",
+        "",
+        "Every query within these limits runs on SQLite and on PostgreSQL (the tests run a "
+        "query at each limit on both); a query past one is refused with a message naming "
+        "the limit. Long lists are cheap (`field in (v1, v2, ...)` is one SQL condition); "
+        "deep nesting is what databases limit.",
+        "",
         "## Grammar",
         "",
         "```",

@@ -37,7 +37,7 @@ from zoo.query.fields import (
 
 #: Comparison operators, in the order the documentation lists them.
 COMPARISON_OPERATORS: tuple[str, ...] = ("=", "!=", "<", "<=", ">", ">=")
-KEYWORDS = frozenset({"and", "or", "not", "in", "yes", "no", "true", "false"})
+KEYWORDS = frozenset({"and", "or", "not", "in", "yes", "no", "true", "false", "every", "some"})
 _BOOLEAN_WORDS = {"yes": True, "true": True, "no": False, "false": False}
 
 #: Numbers in a query may have at most this many digits (10^1000 and beyond are typos).
@@ -45,6 +45,21 @@ MAX_DIGITS = 1000
 #: Numerators and denominators of fraction literals stay below this, so that the exact
 #: cross-multiplied comparison of querysql.py fits a 64-bit integer in every database.
 MAX_FRACTION_PART = 10**12
+
+# Size limits: every query within them parses without deep Python recursion and its SQL runs on
+# SQLite (expression depth 1,000; a parser stack of 100 entries before version 3.46, which 31
+# levels of nested and/or overflow) and on PostgreSQL (65,535 bound parameters);
+# tests/storage/test_querysql.py runs queries at each limit on both.
+#: Levels of nesting: each '(' (a scope's included) and each 'not' opens one.
+MAX_NESTING = 20
+#: Conditions (comparisons, ranges, lists, bare yes/no fields) in one query.
+MAX_CONDITIONS = 1000
+#: Literal values (numbers, yes/no) in one query, the values of every list included.
+MAX_VALUES = 10_000
+
+#: Quantifier words and the scopes they range over (docs/query-language.md, "Scopes").
+QUANTIFIERS: tuple[str, ...] = ("every", "some", "no")
+SCOPES: tuple[str, ...] = ("reading", "member")
 
 Value = int | Fraction | bool
 
@@ -214,24 +229,64 @@ class Or:
         )
 
 
-Node = Comparison | Range | Membership | BoolField | Not | And | Or
+@dataclass(frozen=True)
+class Scoped:
+    """``every reading (q)``, ``some member (q)``, ``no reading (q)``: a class-level condition.
+
+    ``q`` is evaluated on each reading (or member parameter set) of the class on its own;
+    ``every`` holds when q holds on all of them, ``some`` when on at least one, ``no`` when on
+    none. A reading scope takes class and reading fields; scopes do not nest.
+    """
+
+    quantifier: str
+    scope: str
+    operand: Node
+
+    def __post_init__(self) -> None:
+        if self.quantifier not in QUANTIFIERS:
+            raise ValueError(f"unknown quantifier {self.quantifier!r}")
+        if self.scope not in SCOPES:
+            raise ValueError(f"unknown scope {self.scope!r}")
+        for leaf in iter_conditions(self.operand):
+            if isinstance(leaf, Scoped):
+                raise ValueError("scopes do not nest")
+            if self.scope == "reading" and require_field(leaf.field).level is Level.PARAMETER_SET:
+                raise ValueError(f"{leaf.field} is a parameter-set field, not in a reading scope")
+
+    def render(self) -> str:
+        return f"{self.quantifier} {self.scope} ({self.operand.render()})"
+
+
+Node = Comparison | Range | Membership | BoolField | Not | And | Or | Scoped
 Condition = Comparison | Range | Membership | BoolField
 
 
-def iter_conditions(node: Node) -> Iterator[Condition]:
-    """The leaf conditions of a tree, left to right."""
-    if isinstance(node, Not):
-        yield from iter_conditions(node.operand)
-    elif isinstance(node, And | Or):
-        for operand in node.operands:
-            yield from iter_conditions(operand)
-    else:
-        yield node
+def iter_conditions(node: Node, *, into_scopes: bool = True) -> Iterator[Condition | Scoped]:
+    """The leaf conditions of a tree, left to right (without recursion: trees may be deep).
+
+    With ``into_scopes=False`` a scope is yielded whole instead of its conditions.
+    """
+    stack: list[Node] = [node]
+    while stack:
+        current = stack.pop()
+        if isinstance(current, Not):
+            stack.append(current.operand)
+        elif isinstance(current, And | Or):
+            stack.extend(reversed(current.operands))
+        elif isinstance(current, Scoped):
+            if into_scopes:
+                stack.append(current.operand)
+            else:
+                yield current
+        else:
+            yield current
 
 
 def referenced_fields(node: Node) -> frozenset[Field]:
-    """The registry fields a query mentions."""
-    return frozenset(require_field(leaf.field) for leaf in iter_conditions(node))
+    """The registry fields a query mentions, inside scopes included."""
+    return frozenset(
+        require_field(leaf.field) for leaf in iter_conditions(node) if not isinstance(leaf, Scoped)
+    )
 
 
 def referenced_levels(node: Node) -> frozenset[Level]:
@@ -392,6 +447,10 @@ class _Parser:
         self.query = query
         self.tokens = tokenize(query)
         self.index = 0
+        self.depth = 0  # open '(', 'not' and scopes; bounded, so recursion stays shallow
+        self.conditions = 0
+        self.values = 0
+        self.scope: Token | None = None  # the quantifier word of the scope being read
 
     @property
     def current(self) -> Token:
@@ -404,6 +463,17 @@ class _Parser:
 
     def error(self, message: str, token: Token) -> QuerySyntaxError:
         return QuerySyntaxError(message, self.query, token.position)
+
+    def enter(self, token: Token) -> None:
+        """Open one nesting level at ``token``; refuse the level past MAX_NESTING."""
+        self.depth += 1
+        if self.depth > MAX_NESTING:
+            raise self.error(
+                f"The query nests deeper than {MAX_NESTING} levels (each '(' and 'not' opens "
+                "one); remove redundant parentheses and double 'not', or list values "
+                "with 'field in (v1, v2, ...)'",
+                token,
+            )
 
     def parse_query(self) -> Node:
         """``query ::= or_expr end``"""
@@ -443,24 +513,85 @@ class _Parser:
     def parse_not(self) -> Node:
         """``not_expr ::= "not" not_expr | atom``"""
         if _is_word(self.current, "not"):
-            self.advance()
-            return Not(self.parse_not())
+            self.enter(self.advance())
+            node = Not(self.parse_not())
+            self.depth -= 1
+            return node
         return self.parse_atom()
 
     def parse_atom(self) -> Node:
-        """``atom ::= "(" or_expr ")" | condition``"""
+        """``atom ::= "(" or_expr ")" | scope | condition``"""
         if self.current.kind == "lparen":
-            opening = self.advance()
-            node = self.parse_or()
-            if self.current.kind != "rparen":
-                raise self.error(
-                    f"Expected ')' to close the '(' at position {opening.position}, "
-                    f"found {_describe(self.current)}",
-                    self.current,
-                )
-            self.advance()
-            return node
+            return self.parse_group()
+        if self.at_scope():
+            return self.parse_scope()
         return self.parse_condition()
+
+    def parse_group(self) -> Node:
+        opening = self.advance()
+        self.enter(opening)
+        node = self.parse_or()
+        if self.current.kind != "rparen":
+            raise self.error(
+                f"Expected ')' to close the '(' at position {opening.position}, "
+                f"found {_describe(self.current)}",
+                self.current,
+            )
+        self.advance()
+        self.depth -= 1
+        return node
+
+    def at_scope(self) -> bool:
+        """Whether a scope starts here: 'every'/'some' always, 'no' before a scope word."""
+        if _is_word(self.current, "every", "some"):
+            return True
+        following = self.tokens[min(self.index + 1, len(self.tokens) - 1)]
+        return _is_word(self.current, "no") and _is_word(following, *SCOPES)
+
+    def parse_scope(self) -> Node:
+        """``scope ::= ("every" | "some" | "no") ("reading" | "member") "(" or_expr ")"``
+
+        A scope is a class-level condition: its inner query is evaluated on each reading
+        (or member parameter set) of the class on its own.
+        """
+        word = self.advance()
+        quantifier = word.text.casefold()
+        example = f"'{quantifier} reading (regular)' or '{quantifier} member (gamma = 1)'"
+        if self.scope is not None:
+            raise self.error(
+                f"Scopes do not nest: '{word.text}' stands inside the scope opened by "
+                f"'{self.scope.text}' at position {self.scope.position}; write them side by "
+                "side, joined with 'and' or 'or'",
+                word,
+            )
+        if not _is_word(self.current, *SCOPES):
+            raise self.error(
+                f"Expected 'reading' or 'member' after '{word.text}', found "
+                f"{_describe(self.current)}; write {example}",
+                self.current,
+            )
+        scope = self.advance().text.casefold()
+        if self.current.kind != "lparen":
+            raise self.error(
+                f"Expected '(' after '{word.text} {scope}', found {_describe(self.current)}; "
+                f"write {example}",
+                self.current,
+            )
+        self.scope = word
+        start = self.index
+        operand = self.parse_group()
+        self.scope = None
+        if scope == "reading":
+            for token in self.tokens[start : self.index]:
+                field = field_named(token.text) if token.kind == "name" else None
+                if field is not None and field.level is Level.PARAMETER_SET:
+                    raise self.error(
+                        f"Field '{field.name}' differs between the parameter sets of one "
+                        f"reading; inside '{word.text} reading (...)' use class and reading "
+                        f"fields, or write '{quantifier} member (...)'",
+                        token,
+                    )
+        return Scoped(quantifier, scope, operand)
 
     def parse_field(self) -> Field:
         """``field ::= name`` (a field name or alias from the registry, any letter case)"""
@@ -485,6 +616,13 @@ class _Parser:
         """
         start = self.current
         field = self.parse_field()
+        self.conditions += 1
+        if self.conditions > MAX_CONDITIONS:
+            raise self.error(
+                f"The query has more than {MAX_CONDITIONS} conditions; list values with "
+                "'field in (v1, v2, ...)' or 'field in low..high', or split the query",
+                start,
+            )
         token = self.current
         boolean = field.type is FieldType.BOOLEAN
         if token.kind == "op":
@@ -556,6 +694,13 @@ class _Parser:
     def parse_value(self, field: Field, after: Token) -> Value:
         """``value ::= number | "yes" | "no" | "true" | "false"`` (checked against the field)"""
         token = self.current
+        self.values += 1
+        if self.values > MAX_VALUES:
+            raise self.error(
+                f"The query holds more than {MAX_VALUES} values; use ranges "
+                "('field in low..high') for runs of values, or split the query",
+                token,
+            )
         if field.type is FieldType.BOOLEAN:
             if not _is_word(token, *_BOOLEAN_WORDS):
                 raise self.error(
@@ -690,6 +835,10 @@ def referenced_area_bound(node: Node) -> int | None:
 def _area_bound(node: Node, negated: bool) -> int | None:
     if isinstance(node, Not):
         return _area_bound(node.operand, not negated)
+    if isinstance(node, Scoped):
+        # area is the same on every reading and member, and every class has one: 'every'
+        # and 'some' bound it as their operand does, 'no' as the operand's negation.
+        return _area_bound(node.operand, negated != (node.quantifier == "no"))
     if isinstance(node, And | Or):
         bounds = [_area_bound(o, negated) for o in node.operands]
         # "and" (or a negated "or", by De Morgan) is bounded when any operand is.
@@ -729,6 +878,7 @@ def grammar_rules() -> tuple[str, ...]:
         _Parser.parse_and,
         _Parser.parse_not,
         _Parser.parse_atom,
+        _Parser.parse_scope,
         _Parser.parse_condition,
         _Parser.parse_range,
         _Parser.parse_membership,
@@ -754,6 +904,7 @@ __all__ = [
     "Not",
     "Or",
     "Range",
+    "Scoped",
     "SortKey",
     "grammar_rules",
     "iter_conditions",

@@ -262,6 +262,22 @@ class CatalogReader:
             ).scalar_one()
         )
 
+    def matched_readings(self, ids: Sequence[str], node: Any) -> dict[str, str | None]:
+        """Per class, the readings that made it match (``querysql.matched_readings_clause``),
+        or {} when the query reads no reading or parameter-set field."""
+        from zoo.storage.querysql import matched_readings_clause
+
+        clause = None if node is None else matched_readings_clause(node)
+        if clause is None or not ids:
+            return {}
+        found: dict[str, str | None] = {}
+        for chunk in _chunks(list(ids)):
+            rows = self.connection.execute(
+                select(_CLASSES.c.id, clause).where(_CLASSES.c.id.in_(chunk))
+            )
+            found.update({row[0]: row[1] for row in rows})
+        return found
+
     def column_texts(
         self, ids: Sequence[str], names: Sequence[str]
     ) -> dict[str, dict[str, str | None]]:
