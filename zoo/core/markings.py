@@ -15,6 +15,12 @@ which liveness rules out. ``firing_sequence`` does exactly that.
 
 When the counts differ, ``unequal_circuit`` names a directed circuit whose token count differs:
 the evidence a user can check by hand.
+
+Net automorphisms move markings between classes: the same net may carry a marking that is
+reachable from one placement of an initial marking and not from another. ``marking_orbit``
+lists every image of a marking under the automorphisms of the unmarked net (generators from
+nauty), and ``class_signature`` names the reachability class of a marking, so that a marking can
+be compared with all of them at once.
 """
 
 from __future__ import annotations
@@ -263,4 +269,137 @@ def nearest_earlier_marking(
     return None
 
 
-__all__ = ["firing_counts", "firing_sequence", "nearest_earlier_marking", "unequal_circuit"]
+Permutation = tuple[tuple[int, ...], tuple[int, ...]]  # (transition images, place images)
+
+
+def class_signature(graph: MarkedGraph, marking: Sequence[int]) -> tuple[int, ...]:
+    """A name of the reachability class of ``marking``: equal exactly for mutually reachable
+    markings of a live, strongly connected marked graph.
+
+    The token sums around the fundamental cycles of a spanning tree (each place off the tree
+    closes one; arcs walked against their direction count negatively). These cycles span the
+    cycle space, and two markings are linked by the state equation iff they agree on it (the
+    incidence matrix's image is the orthogonal complement of the cycle space; Murata 1989 §V).
+
+    >>> from zoo.core.net import build_net
+    >>> from zoo.core.params import ParameterSet
+    >>> net = build_net(ParameterSet(2, 1, 1, 1))
+    >>> len(class_signature(net, net.tokens)) == net.place_count - net.transition_count + 1
+    True
+    """
+    _check(graph, marking)
+    n = graph.transition_count
+    potential: list[int | None] = [None] * n
+    tree = [False] * graph.place_count
+    touching: list[list[int]] = [[] for _ in range(n)]
+    for place in range(graph.place_count):
+        touching[graph.pre[place]].append(place)
+        touching[graph.post[place]].append(place)
+    for root in range(n):
+        if potential[root] is not None:
+            continue
+        potential[root] = 0
+        queue = deque([root])
+        while queue:
+            t = queue.popleft()
+            for place in touching[t]:
+                u, v = graph.pre[place], graph.post[place]
+                pu, pv = potential[u], potential[v]
+                if pu is not None and pv is None:
+                    potential[v] = pu + marking[place]
+                    tree[place] = True
+                    queue.append(v)
+                elif pv is not None and pu is None:
+                    potential[u] = pv - marking[place]
+                    tree[place] = True
+                    queue.append(u)
+    known = [value or 0 for value in potential]
+    return tuple(
+        marking[place] + known[graph.pre[place]] - known[graph.post[place]]
+        for place in range(graph.place_count)
+        if not tree[place]
+    )
+
+
+def net_automorphisms(graph: MarkedGraph) -> list[Permutation]:
+    """Generators of the automorphism group of the unmarked net (McKay and Piperno 2014, nauty).
+
+    Each is (transition images, place images): transition i goes to ``images[0][i]``, place j
+    to ``images[1][j]``. The net is encoded as in ``zoo.core.canonical`` (a vertex per
+    transition, a tail and a head vertex per place) but without merging twins, so that the
+    generators act on every place.
+    """
+    import pynauty
+
+    n_t, n_p = graph.transition_count, graph.place_count
+    adjacency: dict[int, list[int]] = {}
+    for j in range(n_p):
+        tail, head = n_t + j, n_t + n_p + j
+        adjacency.setdefault(graph.pre[j], []).append(tail)
+        adjacency.setdefault(tail, []).append(head)
+        adjacency.setdefault(graph.post[j], []).append(head)
+    cells = [set(range(n_t)), set(range(n_t, n_t + n_p)), set(range(n_t + n_p, n_t + 2 * n_p))]
+    nauty_graph = pynauty.Graph(
+        n_t + 2 * n_p,
+        directed=False,
+        adjacency_dict=adjacency,
+        vertex_coloring=[cell for cell in cells if cell],
+    )
+    generators = pynauty.autgrp(nauty_graph)[0]
+    return [(tuple(g[:n_t]), tuple(g[n_t + j] - n_t for j in range(n_p))) for g in generators]
+
+
+def _apply(permutation: Permutation, marking: Sequence[int]) -> tuple[int, ...]:
+    moved = [0] * len(marking)
+    for j, image in enumerate(permutation[1]):
+        moved[image] = marking[j]
+    return tuple(moved)
+
+
+def _compose(second: Permutation, first: Permutation) -> Permutation:
+    """``second`` after ``first``."""
+    return (
+        tuple(second[0][i] for i in first[0]),
+        tuple(second[1][j] for j in first[1]),
+    )
+
+
+def marking_orbit(
+    graph: MarkedGraph,
+    marking: Sequence[int],
+    generators: Sequence[Permutation],
+    limit: int,
+) -> dict[tuple[int, ...], Permutation]:
+    """Every image of ``marking`` under the group the generators span, each with one
+    automorphism that maps ``marking`` onto it. Breadth-first over the generators (a finite
+    group's orbit is closed under its generators alone); ``LimitExceeded`` past ``limit``."""
+    _check(graph, marking)
+    start = tuple(marking)
+    identity: Permutation = (tuple(range(graph.transition_count)), tuple(range(graph.place_count)))
+    found: dict[tuple[int, ...], Permutation] = {start: identity}
+    queue = deque([start])
+    while queue:
+        here = queue.popleft()
+        for generator in generators:
+            image = _apply(generator, here)
+            if image not in found:
+                if len(found) >= limit:
+                    raise LimitExceeded(
+                        f"the automorphisms of {graph.describe()} move its marking to more than "
+                        f"{limit:,} places"
+                    )
+                found[image] = _compose(generator, found[here])
+                queue.append(image)
+    return found
+
+
+__all__ = [
+    "Permutation",
+    "class_signature",
+    "firing_counts",
+    "firing_sequence",
+    "marking_orbit",
+    "nearest_earlier_marking",
+    "net_automorphisms",
+    "unequal_circuit",
+]
