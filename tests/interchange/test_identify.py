@@ -29,6 +29,7 @@ from zoo.catalog.lookup import catalog_lookup
 from zoo.cli import app
 from zoo.cli.app import NOT_A_CYCLOID
 from zoo.core.algebra import class_key
+from zoo.core.canonical import net_form
 from zoo.core.net import build_net
 from zoo.core.params import ParameterSet
 from zoo.interchange.identify import Identification, identify_file, identify_net, place_bound
@@ -798,3 +799,174 @@ def test_identify_explains_json_dot_and_empty_files(tmp_path: Path) -> None:
     assert f"Error: {empty} is empty; give a PNML or net text file" in result.output
     assert f"Error: {blank} is empty; give a PNML or net text file" in result.output
     assert "no transitions" not in result.output
+
+
+# --- reachable markings: the done-when of issue 10 ----------------------------------------------
+
+
+def fired_at_random(document: bytes, rng: random.Random, steps: int) -> PlaceTransitionNet:
+    """The net of a PNML document after ``steps`` random firings, each of an enabled transition
+    chosen on the file's own net (no zoo code decides what is enabled)."""
+    net = parse_pnml(document, "fired.pnml")
+    marking = dict(zip(net.places, net.tokens, strict=True))
+    pre, post = arcs_of(net)
+    for _ in range(steps):
+        enabled = [
+            t for t in net.transitions if all(marking[p] for p in net.places if post[p] == t)
+        ]
+        fire_by_name(net, marking, rng.choice(enabled))
+    return PlaceTransitionNet(
+        source=net.source,
+        name=net.name,
+        places=net.places,
+        transitions=net.transitions,
+        tokens=tuple(marking[p] for p in net.places),
+        arcs=net.arcs,
+    )
+
+
+def test_sampled_classes_up_to_area_30_are_recognised_after_random_firings() -> None:
+    # Issue 10, done when: export a class, fire a random sequence, identify the file: the class
+    # comes back with a valid firing sequence. A sample of classes (every class takes ~10 ms; the
+    # benchmark covers them all), plus C(1,16,1,14), whose 2^14 automorphic placements send it to
+    # the explicit search.
+    rng = random.Random(1971)
+    classes = list(class_representatives(MAX_AREA).values())
+    sample = [*rng.sample(classes, 60), ParameterSet(1, 16, 1, 14)]
+    kinds = set()
+    for p in sample:
+        document = scrambled(pnml_document(build_net(p)), rng)
+        net = fired_at_random(document, rng, rng.randint(1, 2 * p.area))
+        answer = identify_net(net, use_catalog=False)
+        assert answer.cycloid, (p, answer.reason)
+        assert answer.params is not None and class_key(answer.params) == class_key(p)
+        assert_reached(net, answer)
+        kinds.add(answer.marking)
+    assert "reachable" in kinds
+
+
+@given(
+    values=st.tuples(*(st.integers(1, 4) for _ in range(4))).filter(
+        lambda v: 2 <= v[0] * v[3] + v[1] * v[2] <= 12
+    ),
+    steps=st.integers(0, 30),
+    rng=st.randoms(use_true_random=False),
+)
+@settings(max_examples=40, deadline=None)
+def test_any_random_firing_sequence_is_recognised(
+    values: tuple[int, ...], steps: int, rng: random.Random
+) -> None:
+    p = ParameterSet(*values)
+    net = fired_at_random(pnml_document(build_net(p)).encode(), rng, steps)
+    answer = identify_net(net, use_catalog=False)
+    assert answer.cycloid, answer.reason
+    assert answer.params is not None and class_key(answer.params) == class_key(p)
+    assert_reached(net, answer)
+    assert len(answer.firing) <= steps
+
+
+def _live_markings(p: ParameterSet, rng: random.Random, count: int) -> list[tuple[int, ...]]:
+    """Distinct markings of C(p)'s net with alpha + beta tokens on distinct places, drawn at
+    random and kept when live (networkx: the places without tokens form no cycle, Commoner et
+    al. 1971)."""
+    net = build_net(p)
+    found: set[tuple[int, ...]] = set()
+    for _ in range(20_000):
+        if len(found) == count:
+            break
+        chosen = set(rng.sample(range(net.place_count), p.alpha + p.beta))
+        unmarked = nx.DiGraph()
+        unmarked.add_nodes_from(range(net.transition_count))
+        unmarked.add_edges_from(
+            (net.pre[j], net.post[j]) for j in range(net.place_count) if j not in chosen
+        )
+        if nx.is_directed_acyclic_graph(unmarked):
+            found.add(tuple(int(j in chosen) for j in range(net.place_count)))
+    assert len(found) == count
+    return sorted(found)
+
+
+SMALL_NETS = [ParameterSet(3, 2, 1, 1), ParameterSet(2, 3, 1, 2), ParameterSet(3, 3, 1, 1)]
+
+
+def test_live_markings_agree_with_explicit_reachability_up_to_isomorphism() -> None:
+    # Marked-graph theorem (Commoner, Holt, Even, Pnueli 1971; Murata 1989 §V) against explicit
+    # search: the marking is reachable under some isomorphism iff networkx finds a marking of the
+    # cycloid's reachability graph (built from the definition) isomorphic to the file's marked
+    # net. Refusals carry a directed circuit of the file whose token count differs.
+    verdicts = set()
+    for p in SMALL_NETS:
+        net = build_net(p)
+        reference = independent_cycloid(p)
+        reachable = [marked_as(reference, m) for m in explicit_distances(reference)]
+        arcs = parse_net_text(net_text(net)).arcs
+        for marking in _live_markings(p, random.Random(p.area), 12):
+            foreign = PlaceTransitionNet("m", "", net.places, net.transitions, marking, arcs)
+            answer = identify_net(foreign, use_catalog=False)
+            explicit = any(isomorphic(as_digraph(foreign), g) for g in reachable)
+            if answer.cycloid and answer.params is not None:
+                assert_reached(foreign, answer)  # reachable from the reported class's M0
+                if class_key(answer.params) == class_key(p):
+                    assert explicit
+                    verdicts.add("reachable")
+                continue
+            assert not explicit, answer.reason
+            assert answer.marking == "unreachable" and answer.circuit is not None
+            assert answer.net_params is not None
+            assert net_form(answer.net_params).text == net_form(p).text
+            verdicts.add("unreachable")
+            circuit = answer.circuit
+            pre, post = arcs_of(foreign)
+            tokens = dict(zip(foreign.places, marking, strict=True))
+            places = list(circuit.places)
+            for here, nxt in zip(places, places[1:] + places[:1], strict=True):
+                assert post[here] == pre[nxt]  # a directed circuit of the file's net
+            assert [pre[q] for q in places] == list(circuit.transitions)
+            assert sum(tokens[q] for q in places) == circuit.tokens != circuit.initial_tokens
+            assert answer.reason is not None and "not reachable" in answer.reason
+    # C(3,2,1,1) and C(3,3,1,1) share their net with other classes (C(G,C,1,1) for one C + G),
+    # whose initial markings some of the drawn markings are; C(2,3,1,2) gives refusals.
+    assert {"reachable", "unreachable"} <= verdicts
+
+
+def test_an_unreachable_marking_is_refused_with_its_circuit(tmp_path: Path) -> None:
+    # Five tokens put down at random on the net of C(2,3,1,2) until it is live but no reachable
+    # marking of the cycloid, built from the definition, is isomorphic to it (networkx):
+    # identify must refuse it and name a circuit whose token count differs from the one it
+    # carries at the initial marking.
+    p = ParameterSet(2, 3, 1, 2)
+    net = build_net(p)
+    reference = independent_cycloid(p)
+    reachable = [marked_as(reference, m) for m in explicit_distances(reference)]
+    arcs = parse_net_text(net_text(net)).arcs
+    chosen = next(
+        m
+        for m in _live_markings(p, random.Random(3), 10)
+        if not any(
+            isomorphic(
+                as_digraph(PlaceTransitionNet("m", "", net.places, net.transitions, m, arcs)), g
+            )
+            for g in reachable
+        )
+    )
+    lines = ["net loop"]
+    for j, name in enumerate(net.places):
+        lines.append(
+            f"place {name}: {net.transitions[net.pre[j]]} -> {net.transitions[net.post[j]]} "
+            f"tokens {chosen[j]}"
+        )
+    path = tmp_path / "loop.mgraph"
+    path.write_text("\n".join(lines) + "\n")
+    result = runner.invoke(app, ["identify", str(path), "--format", "json", "--no-catalog"])
+    assert result.exit_code == NOT_A_CYCLOID, result.output
+    answer = json.loads(result.output)
+    assert answer["cycloid"] is False and answer["marking"] == "unreachable"
+    assert answer["net_of"] == str(_class_label_of(p))
+    circuit = answer["circuit"]
+    assert circuit["tokens"] != circuit["initial_tokens"]
+    tokens = dict(zip(net.places, chosen, strict=True))
+    assert sum(tokens[q] for q in circuit["places"]) == circuit["tokens"]
+    assert answer["reason"].startswith(f"the net of {answer['net_of']} in a marking not reachable")
+    text = runner.invoke(app, ["identify", str(path), "--no-catalog"])
+    assert text.exit_code == NOT_A_CYCLOID
+    assert f"carries {circuit['tokens']} token" in text.output
