@@ -115,3 +115,55 @@ def test_backward_search_finds_the_initial_marking_at_the_forward_distance(p: C)
             assert all(current[j] for j in net.input_places(t))
             current = fire(net, current, t)
         assert tuple(current) == rg.marking(state)
+
+
+@pytest.mark.parametrize("p", SYSTEMS[:4], ids=str)
+def test_class_signature_names_exactly_the_reachable_markings(p: C) -> None:
+    # Equal signatures iff the state equation has a solution (the explicit reachability graph
+    # gives the reachable markings; moved tokens give others, reachable or not).
+    from zoo.core.markings import class_signature
+
+    net = build_net(p)
+    reachable = set(reachability_graph(net).iter_markings())
+    start = class_signature(net, net.tokens)
+    assert {class_signature(net, m) for m in reachable} == {start}
+    rng = random.Random(p.area)
+    for _ in range(100):
+        moved = list(rng.choice(sorted(reachable)))
+        moved[rng.choice([j for j, k in enumerate(moved) if k])] -= 1
+        moved[rng.randrange(len(moved))] += 1
+        same = class_signature(net, moved) == start
+        assert same == (firing_counts(net, net.tokens, moved) is not None)
+        assert same == (tuple(moved) in reachable)  # Commoner et al.: live, so no gap
+
+
+@pytest.mark.parametrize("p", [C(2, 2, 1, 1), C(3, 2, 1, 1), C(2, 1, 2, 2), C(1, 4, 1, 2)], ids=str)
+def test_orbit_of_the_initial_marking_matches_networkx_isomorphisms(p: C) -> None:
+    # The images of M0 under every automorphism of the unmarked net, enumerated by networkx's
+    # matcher on the net as a directed graph, are exactly the orbit built from nauty's
+    # generators; each recorded automorphism keeps the arcs and maps M0 onto its image.
+    from networkx.algorithms.isomorphism import DiGraphMatcher
+
+    from zoo.core.markings import marking_orbit, net_automorphisms
+
+    net = build_net(p)
+    graph = nx.DiGraph()
+    for t in range(net.transition_count):
+        graph.add_node(("t", t), kind="t")
+    for j in range(net.place_count):
+        graph.add_node(("p", j), kind="p")
+        graph.add_edge(("t", net.pre[j]), ("p", j))
+        graph.add_edge(("p", j), ("t", net.post[j]))
+    matcher = DiGraphMatcher(graph, graph, node_match=lambda a, b: a["kind"] == b["kind"])
+    expected = set()
+    for iso in matcher.isomorphisms_iter():
+        image = [0] * net.place_count
+        for j in range(net.place_count):
+            image[iso[("p", j)][1]] = net.tokens[j]
+        expected.add(tuple(image))
+    orbit = marking_orbit(net, net.tokens, net_automorphisms(net), 10_000)
+    assert set(orbit) == expected
+    for image, (moves, place_moves) in orbit.items():
+        for j, k in enumerate(place_moves):
+            assert net.pre[k] == moves[net.pre[j]] and net.post[k] == moves[net.post[j]]
+            assert image[k] == net.tokens[j]
