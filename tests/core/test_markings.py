@@ -144,7 +144,7 @@ def test_orbit_of_the_initial_marking_matches_networkx_isomorphisms(p: C) -> Non
     # generators; each recorded automorphism keeps the arcs and maps M0 onto its image.
     from networkx.algorithms.isomorphism import DiGraphMatcher
 
-    from zoo.core.markings import marking_orbit, net_automorphisms
+    from zoo.core.markings import marking_orbit, net_automorphisms, orbit_automorphism
 
     net = build_net(p)
     graph = nx.DiGraph()
@@ -161,9 +161,42 @@ def test_orbit_of_the_initial_marking_matches_networkx_isomorphisms(p: C) -> Non
         for j in range(net.place_count):
             image[iso[("p", j)][1]] = net.tokens[j]
         expected.add(tuple(image))
-    orbit = marking_orbit(net, net.tokens, net_automorphisms(net), 10_000)
+    generators = net_automorphisms(net)
+    orbit = marking_orbit(net, net.tokens, generators, 10_000)
     assert set(orbit) == expected
-    for image, (moves, place_moves) in orbit.items():
+    for image in orbit:
+        moves, place_moves = orbit_automorphism(net, orbit, generators, image)
         for j, k in enumerate(place_moves):
             assert net.pre[k] == moves[net.pre[j]] and net.post[k] == moves[net.post[j]]
             assert image[k] == net.tokens[j]
+
+
+@pytest.mark.parametrize("p", SYSTEMS[:4], ids=str)
+def test_nearest_source_agrees_with_firing_counts_one_by_one(p: C) -> None:
+    # The batched state equation gives, for every source, the answer of firing_counts; the chosen
+    # source has the smallest total, and breadth-first distances (networkx) confirm it.
+    from zoo.core.markings import nearest_source
+
+    net = build_net(p)
+    rg = reachability_graph(net)
+    markings = list(rg.iter_markings())
+    rng = random.Random(p.area)
+    sources = rng.sample(markings, min(12, len(markings)))
+    moved = list(sources[0])
+    moved[moved.index(1)] -= 1
+    moved[moved.index(0)] += 1
+    sources.append(tuple(moved))  # in no class of the others, or in theirs: either is fine
+    graph = reachability_to_networkx(rg)
+    index = {m: s for s, m in enumerate(markings)}
+    for target in rng.sample(markings, min(8, len(markings))):
+        found = nearest_source(net, sources, target, chunk=5)
+        one_by_one = [firing_counts(net, s, target) for s in sources]
+        totals = [sum(c) for c in one_by_one if c is not None]
+        assert found is not None
+        chosen, counts = found
+        assert counts == one_by_one[chosen] and sum(counts) == min(totals)
+        lengths = [
+            nx.shortest_path_length(graph, index[s], index[target]) for s in sources if s in index
+        ]
+        assert sum(counts) == min(lengths)
+    assert nearest_source(net, [tuple(moved)], net.tokens) is None or tuple(moved) in index

@@ -364,23 +364,27 @@ def _compose(second: Permutation, first: Permutation) -> Permutation:
     )
 
 
+#: For every image in an orbit: the image it was reached from and the generator used (None for
+#: the start).
+Orbit = dict[tuple[int, ...], tuple[tuple[int, ...], int] | None]
+
+
 def marking_orbit(
     graph: MarkedGraph,
     marking: Sequence[int],
     generators: Sequence[Permutation],
     limit: int,
-) -> dict[tuple[int, ...], Permutation]:
-    """Every image of ``marking`` under the group the generators span, each with one
-    automorphism that maps ``marking`` onto it. Breadth-first over the generators (a finite
-    group's orbit is closed under its generators alone); ``LimitExceeded`` past ``limit``."""
+) -> Orbit:
+    """Every image of ``marking`` under the group the generators span, breadth-first over the
+    generators (a finite group's orbit is closed under its generators alone); each image
+    records how it was reached, for ``orbit_automorphism``. ``LimitExceeded`` past ``limit``."""
     _check(graph, marking)
     start = tuple(marking)
-    identity: Permutation = (tuple(range(graph.transition_count)), tuple(range(graph.place_count)))
-    found: dict[tuple[int, ...], Permutation] = {start: identity}
+    found: Orbit = {start: None}
     queue = deque([start])
     while queue:
         here = queue.popleft()
-        for generator in generators:
+        for index, generator in enumerate(generators):
             image = _apply(generator, here)
             if image not in found:
                 if len(found) >= limit:
@@ -388,18 +392,92 @@ def marking_orbit(
                         f"the automorphisms of {graph.describe()} move its marking to more than "
                         f"{limit:,} places"
                     )
-                found[image] = _compose(generator, found[here])
+                found[image] = (here, index)
                 queue.append(image)
     return found
 
 
+def orbit_automorphism(
+    graph: MarkedGraph, orbit: Orbit, generators: Sequence[Permutation], image: tuple[int, ...]
+) -> Permutation:
+    """An automorphism that maps the orbit's start onto ``image`` (composed along the path by
+    which ``marking_orbit`` reached it)."""
+    steps: list[int] = []
+    link = orbit[image]
+    while link is not None:
+        earlier, index = link
+        steps.append(index)
+        link = orbit[earlier]
+    result: Permutation = (tuple(range(graph.transition_count)), tuple(range(graph.place_count)))
+    for index in reversed(steps):
+        result = _compose(generators[index], result)
+    return result
+
+
+def nearest_source(
+    graph: MarkedGraph, sources: Sequence[Sequence[int]], target: Sequence[int], chunk: int = 256
+) -> tuple[int, tuple[int, ...]] | None:
+    """The source marking from which ``target`` is reached by the fewest firings, as (its index,
+    the firing counts), or None when ``target`` is reachable from none of them.
+
+    ``firing_counts`` for many sources at once (numpy, a chunk of sources per pass): the counts
+    are propagated along one breadth-first spanning tree of the net, then every place is checked
+    against the state equation. The graph must be connected.
+    """
+    import numpy as np
+
+    _check(graph, target, *sources[:1])
+    n = graph.transition_count
+    touching: list[list[int]] = [[] for _ in range(n)]
+    for place in range(graph.place_count):
+        touching[graph.pre[place]].append(place)
+        touching[graph.post[place]].append(place)
+    seen = [False] * n
+    seen[0] = True
+    order: list[tuple[int, int, int, int]] = []  # (new transition, known one, place, sign)
+    queue = deque([0])
+    while queue:
+        t = queue.popleft()
+        for place in touching[t]:
+            u, v = graph.pre[place], graph.post[place]
+            if u == t and not seen[v]:  # x[v] = x[u] - change
+                seen[v] = True
+                order.append((v, u, place, -1))
+                queue.append(v)
+            elif v == t and not seen[u]:  # x[u] = x[v] + change
+                seen[u] = True
+                order.append((u, v, place, 1))
+                queue.append(u)
+    if not all(seen):
+        raise FormatError(f"{graph.describe()} is not connected; reachability needs one net")
+    pre, post = np.array(graph.pre), np.array(graph.post)
+    goal = np.array(target, dtype=np.int64)
+    best: tuple[int, int, tuple[int, ...]] | None = None
+    for begin in range(0, len(sources), chunk):
+        block = np.array(sources[begin : begin + chunk], dtype=np.int64)
+        change = goal[None, :] - block  # = x[pre] - x[post], per source
+        x = np.zeros((len(block), n), dtype=np.int64)
+        for new, known, place, sign in order:
+            x[:, new] = x[:, known] + sign * change[:, place]
+        solved = np.all(change == x[:, pre] - x[:, post], axis=1)
+        x -= x.min(axis=1, keepdims=True)
+        totals = x.sum(axis=1)
+        for row in np.flatnonzero(solved):
+            if best is None or totals[row] < best[0]:
+                best = (int(totals[row]), begin + int(row), tuple(int(k) for k in x[row]))
+    return None if best is None else (best[1], best[2])
+
+
 __all__ = [
+    "Orbit",
     "Permutation",
     "class_signature",
     "firing_counts",
     "firing_sequence",
     "marking_orbit",
     "nearest_earlier_marking",
+    "nearest_source",
+    "orbit_automorphism",
     "net_automorphisms",
     "unequal_circuit",
 ]

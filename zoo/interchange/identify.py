@@ -699,15 +699,15 @@ def _reach(
 
     Isomorphisms are ``mapping`` followed by an automorphism of the target net; an automorphism
     sigma turns the question into: is the mapped marking reachable from sigma(M0)? The images
-    sigma(M0) are listed (``marking_orbit``) and compared by reachability class
-    (``class_signature``); the firing counts give the shortest sequence from each.
+    sigma(M0) are listed (``marking_orbit``) and the state equation is solved from all of them
+    at once (``nearest_source``); the smallest firing counts give the shortest sequence.
     """
     from zoo.core.markings import (
-        class_signature,
-        firing_counts,
         firing_sequence,
         marking_orbit,
+        nearest_source,
         net_automorphisms,
+        orbit_automorphism,
         unequal_circuit,
     )
     from zoo.errors import LimitExceeded
@@ -716,23 +716,19 @@ def _reach(
     mapped = [0] * target.place_count
     for j, k in enumerate(place_map):
         mapped[k] = graph.tokens[j]
+    generators = net_automorphisms(target)
     try:
-        orbit = marking_orbit(target, target.tokens, net_automorphisms(target), ORBIT_LIMIT)
+        orbit = marking_orbit(target, target.tokens, generators, ORBIT_LIMIT)
     except LimitExceeded:
         found = _reach_by_search(graph, target)
         if found is not None:
             return found
     else:
-        signature = class_signature(target, mapped)
-        best: tuple[int, tuple[int, ...], tuple[tuple[int, ...], tuple[int, ...]]] | None = None
-        for image, automorphism in orbit.items():
-            if class_signature(target, image) != signature:
-                continue
-            counts = firing_counts(target, image, mapped)
-            if counts is not None and (best is None or sum(counts) < best[0]):
-                best = (sum(counts), image, automorphism)
+        images = list(orbit)
+        best = nearest_source(target, images, mapped)
         if best is not None:
-            _, image, (moves, place_moves) = best
+            image = images[best[0]]
+            moves, place_moves = orbit_automorphism(target, orbit, generators, image)
             sequence = firing_sequence(target, image, mapped) or []
             back_t = [0] * target.transition_count
             for i, k in enumerate(moves):
