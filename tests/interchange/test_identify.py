@@ -966,6 +966,11 @@ def test_an_unreachable_marking_is_refused_with_its_circuit(tmp_path: Path) -> N
     assert circuit["tokens"] != circuit["initial_tokens"]
     tokens = dict(zip(net.places, chosen, strict=True))
     assert sum(tokens[q] for q in circuit["places"]) == circuit["tokens"]
+    # The initial count is read through the mapping the answer gives (an unmarked isomorphism).
+    label_net = build_net(_class_label_of(p))
+    initial = dict(zip(label_net.places, label_net.tokens, strict=True))
+    places = answer["mapping"]["places"]
+    assert sum(initial[places[q]] for q in circuit["places"]) == circuit["initial_tokens"]
     assert answer["reason"].startswith(f"the net of {answer['net_of']} in a marking not reachable")
     text = runner.invoke(app, ["identify", str(path), "--no-catalog"])
     assert text.exit_code == NOT_A_CYCLOID

@@ -190,7 +190,7 @@ def identify(
         typer.echo(answer.summary())
         if answer.marking == "reachable":
             typer.echo(f"  firing: {' '.join(answer.firing)}")
-        if mapping and answer.cycloid:
+        if mapping and answer.transition_map:
             for foreign, ours in answer.transition_map:
                 typer.echo(f"  transition {foreign} = {ours}")
             for foreign, ours in answer.place_map:

@@ -115,7 +115,7 @@ class Identification:
             "synthesized": [str(q) for q in self.synthesized],
             "observables": None if self.observables is None else self.observables.as_dict(),
             "mapping": None
-            if not self.cycloid
+            if not self.transition_map
             else {
                 "transitions": dict(self.transition_map),
                 "places": dict(self.place_map),
@@ -624,7 +624,9 @@ def _identify_reachable(
         labels = [q for q in labels if closed_walk_counts(build_net(q), 0, length) == profile]
     form = canonical_form(graph, marked=False)
     answers: list[tuple[int, ParameterSet, _Reached]] = []
-    unreachable: tuple[ParameterSet, Circuit] | None = None
+    unreachable: tuple[ParameterSet, Circuit, MarkedGraph, tuple[tuple[int, ...], ...]] | None = (
+        None
+    )
     for params in labels:
         target = build_net(params)
         mapping = isomorphism_from_forms(
@@ -634,7 +636,7 @@ def _identify_reachable(
             continue
         reached = _reach(graph, target, mapping)
         if isinstance(reached, Circuit):
-            unreachable = unreachable or (params, reached)
+            unreachable = unreachable or (params, reached, target, mapping)
             continue
         _check_firing(graph, target, reached)
         answers.append((len(reached.firing), params, reached))
@@ -666,7 +668,7 @@ def _identify_reachable(
         )
     if unreachable is None:
         return None
-    params, circuit = unreachable
+    params, circuit, net_of, (transition_map, place_map) = unreachable
     class_id, status = (
         lookup(params, None) if lookup is not None else (None, "catalog not consulted")
     )
@@ -678,11 +680,15 @@ def _identify_reachable(
             f"the net of {params}{where} in a marking not reachable from its initial marking "
             f"under any isomorphism: the circuit {circuit.text()} carries {circuit.tokens} "
             f"token{'s' if circuit.tokens != 1 else ''}, {circuit.initial_tokens} at the "
-            "initial marking"
+            "initial marking under the mapping given"
         ),
         catalog=status,
         synthesized=tuple(found),
         observables=seen,
+        transition_map=tuple(
+            (graph.transitions[i], net_of.transitions[k]) for i, k in enumerate(transition_map)
+        ),
+        place_map=tuple((graph.places[j], net_of.places[k]) for j, k in enumerate(place_map)),
         marking="unreachable",
         net_params=params,
         net_class_id=class_id,
