@@ -115,3 +115,88 @@ def test_backward_search_finds_the_initial_marking_at_the_forward_distance(p: C)
             assert all(current[j] for j in net.input_places(t))
             current = fire(net, current, t)
         assert tuple(current) == rg.marking(state)
+
+
+@pytest.mark.parametrize("p", SYSTEMS[:4], ids=str)
+def test_class_signature_names_exactly_the_reachable_markings(p: C) -> None:
+    # Equal signatures iff the state equation has a solution (the explicit reachability graph
+    # gives the reachable markings; moved tokens give others, reachable or not).
+    from zoo.core.markings import class_signature
+
+    net = build_net(p)
+    reachable = set(reachability_graph(net).iter_markings())
+    start = class_signature(net, net.tokens)
+    assert {class_signature(net, m) for m in reachable} == {start}
+    rng = random.Random(p.area)
+    for _ in range(100):
+        moved = list(rng.choice(sorted(reachable)))
+        moved[rng.choice([j for j, k in enumerate(moved) if k])] -= 1
+        moved[rng.randrange(len(moved))] += 1
+        same = class_signature(net, moved) == start
+        assert same == (firing_counts(net, net.tokens, moved) is not None)
+        assert same == (tuple(moved) in reachable)  # Commoner et al.: live, so no gap
+
+
+@pytest.mark.parametrize("p", [C(2, 2, 1, 1), C(3, 2, 1, 1), C(2, 1, 2, 2), C(1, 4, 1, 2)], ids=str)
+def test_orbit_of_the_initial_marking_matches_networkx_isomorphisms(p: C) -> None:
+    # The images of M0 under every automorphism of the unmarked net, enumerated by networkx's
+    # matcher on the net as a directed graph, are exactly the orbit built from nauty's
+    # generators; each recorded automorphism keeps the arcs and maps M0 onto its image.
+    from networkx.algorithms.isomorphism import DiGraphMatcher
+
+    from zoo.core.markings import marking_orbit, net_automorphisms, orbit_automorphism
+
+    net = build_net(p)
+    graph = nx.DiGraph()
+    for t in range(net.transition_count):
+        graph.add_node(("t", t), kind="t")
+    for j in range(net.place_count):
+        graph.add_node(("p", j), kind="p")
+        graph.add_edge(("t", net.pre[j]), ("p", j))
+        graph.add_edge(("p", j), ("t", net.post[j]))
+    matcher = DiGraphMatcher(graph, graph, node_match=lambda a, b: a["kind"] == b["kind"])
+    expected = set()
+    for iso in matcher.isomorphisms_iter():
+        image = [0] * net.place_count
+        for j in range(net.place_count):
+            image[iso[("p", j)][1]] = net.tokens[j]
+        expected.add(tuple(image))
+    generators = net_automorphisms(net)
+    orbit = marking_orbit(net, net.tokens, generators, 10_000)
+    assert set(orbit) == expected
+    for image in orbit:
+        moves, place_moves = orbit_automorphism(net, orbit, generators, image)
+        for j, k in enumerate(place_moves):
+            assert net.pre[k] == moves[net.pre[j]] and net.post[k] == moves[net.post[j]]
+            assert image[k] == net.tokens[j]
+
+
+@pytest.mark.parametrize("p", SYSTEMS[:4], ids=str)
+def test_nearest_source_agrees_with_firing_counts_one_by_one(p: C) -> None:
+    # The batched state equation gives, for every source, the answer of firing_counts; the chosen
+    # source has the smallest total, and breadth-first distances (networkx) confirm it.
+    from zoo.core.markings import nearest_source
+
+    net = build_net(p)
+    rg = reachability_graph(net)
+    markings = list(rg.iter_markings())
+    rng = random.Random(p.area)
+    sources = rng.sample(markings, min(12, len(markings)))
+    moved = list(sources[0])
+    moved[moved.index(1)] -= 1
+    moved[moved.index(0)] += 1
+    sources.append(tuple(moved))  # in no class of the others, or in theirs: either is fine
+    graph = reachability_to_networkx(rg)
+    index = {m: s for s, m in enumerate(markings)}
+    for target in rng.sample(markings, min(8, len(markings))):
+        found = nearest_source(net, sources, target, chunk=5)
+        one_by_one = [firing_counts(net, s, target) for s in sources]
+        totals = [sum(c) for c in one_by_one if c is not None]
+        assert found is not None
+        chosen, counts = found
+        assert counts == one_by_one[chosen] and sum(counts) == min(totals)
+        lengths = [
+            nx.shortest_path_length(graph, index[s], index[target]) for s in sources if s in index
+        ]
+        assert sum(counts) == min(lengths)
+    assert nearest_source(net, [tuple(moved)], net.tokens) is None or tuple(moved) in index

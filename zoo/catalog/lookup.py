@@ -1,4 +1,5 @@
-"""Answering ``zoo identify`` from a catalog: the class of an identified net, never building.
+"""Answering from a catalog without building one: the class of an identified net
+(``zoo identify``) and the classes a designed system iterates (``zoo ring``).
 
 ``zoo.interchange.identify`` takes a lookup function and never opens a database itself;
 ``catalog_lookup(location)`` is that function for the catalog at a location (``--db``).
@@ -9,14 +10,8 @@ from __future__ import annotations
 from collections.abc import Callable
 from functools import partial
 
-from zoo.catalog.service import Catalog
 from zoo.core.params import ParameterSet
 from zoo.errors import CatalogError
-from zoo.storage.database import (
-    catalog_exists,
-    display_location,
-    resolve_location,
-)
 from zoo.storage.location import catalog_file
 
 
@@ -39,6 +34,10 @@ def catalog_status(
     ``no catalog at X`` or ``catalog unavailable (...)``. With ``fingerprint`` the entry's
     stored fingerprint is compared with it, and a mismatch is reported in the status.
     """
+    # Imported here: SQLAlchemy costs half a second, which ``zoo ring`` need not pay.
+    from zoo.catalog.service import Catalog
+    from zoo.storage.database import catalog_exists, display_location, resolve_location
+
     missing = _missing_catalog_file(location)
     if missing is not None:
         return None, missing
@@ -67,6 +66,25 @@ def catalog_status(
     return None, f"not in the catalog at {shown}"
 
 
+def iterated_entries(
+    p: ParameterSet, class_id: Callable[[ParameterSet], str | None]
+) -> list[dict[str, object]]:
+    """The catalog classes of which the class of p is an n-fold temporal iteration, as
+    ``{"id", "n"}`` sorted by n then identifier (``zoo.core.iterations.class_iteration_bases``,
+    docs/theory/iterations.md); ``class_id`` looks a parameter set up in the catalog (None when
+    it is not held). Empty when the class iterates nothing the catalog holds."""
+    from zoo.core.iterations import class_iteration_bases
+
+    found = {(class_id(base), n) for base, n in class_iteration_bases(p)}
+    links = [(identifier, n) for identifier, n in found if identifier is not None]
+    return [{"id": identifier, "n": n} for identifier, n in sorted(links, key=_link_order)]
+
+
+def _link_order(link: tuple[str, int]) -> tuple[int, int, int]:
+    area, _, rank = link[0][2:].partition("-")
+    return (link[1], int(area), int(rank))
+
+
 def catalog_lookup(
     location: str | None,
 ) -> Callable[[ParameterSet, str | None], tuple[str | None, str]]:
@@ -80,7 +98,4 @@ def _status(
     return catalog_status(params, location, fingerprint)
 
 
-__all__ = ["catalog_lookup", "catalog_status"]
-
-
-__all__ = ["catalog_file", "catalog_lookup", "catalog_status"]
+__all__ = ["catalog_file", "catalog_lookup", "catalog_status", "iterated_entries"]

@@ -155,8 +155,11 @@ def identify(
     """Decide whether the net in each file is a cycloid system, and which one.
 
     A cycloid gets its class label, its catalog identifier and the
-    isomorphism onto the label's coordinates; any other net gets the
-    first rule it breaks (docs/identify.md).
+    isomorphism onto the label's coordinates. A cycloid's net drawn in
+    another reachable marking is recognised too, with a shortest firing
+    sequence from the initial marking (a "firing:" line); a marking that is
+    not reachable is refused with a circuit whose token count differs. Any
+    other net gets the first rule it breaks (docs/identify.md).
 
     Exit status 1 when a file cannot be read, else 4 when a net is not a cycloid system.
 
@@ -185,7 +188,9 @@ def identify(
             typer.echo(json.dumps(answer.as_dict(), ensure_ascii=False))
             continue
         typer.echo(answer.summary())
-        if mapping and answer.cycloid:
+        if answer.marking == "reachable":
+            typer.echo(f"  firing: {' '.join(answer.firing)}")
+        if mapping and answer.transition_map:
             for foreign, ours in answer.transition_map:
                 typer.echo(f"  transition {foreign} = {ours}")
             for foreign, ours in answer.place_map:

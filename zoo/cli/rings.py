@@ -59,11 +59,16 @@ def ring(
 ) -> None:
     """The cycloid of a circular queue of C items and G free slots.
 
+    "iterates" names the catalog entries of which the designed system is an
+    n-fold temporal iteration (named items or slots: the anonymous ring's
+    class, n-fold), when the catalog holds them.
+
     --simulate explores the ring's states and the cycloid's reachability graph, each up to
     --state-limit states.
 
     Example: zoo ring --items 2 --slots 3 --individual-items
     """
+    from zoo.catalog.lookup import iterated_entries
     from zoo.core.rings import RingDesign, describe_ring
 
     try:
@@ -71,6 +76,9 @@ def ring(
         report = describe_ring(
             design, class_id_of(design.params, db), state_limit if simulate else None
         )
+        # The catalog entries this system is an n-fold iteration of (docs/theory/iterations.md):
+        # named items or slots repeat the anonymous ring's behaviour n times over.
+        report["iterates"] = iterated_entries(design.params, lambda q: class_id_of(q, db))
     except ZooError as exc:
         raise fail(exc) from None
     if fmt is TableOrJson.json:
@@ -88,6 +96,10 @@ def _print_ring_table(report: dict[str, Any]) -> None:
         ("model", report["model"]),
         ("cycloid", report["params"]),
         ("catalog id", report["class_id"] or "—"),
+        (
+            "iterates",
+            ", ".join(f"{link['id']} ({link['n']}-fold)" for link in report["iterates"]) or "—",
+        ),
         ("area", f"{report['area']:,} (shortest return to the start, in moves)"),
         ("reachable states", number_text(report["states"])),
         ("reachability arcs", number_text(inv["state_arcs"])),

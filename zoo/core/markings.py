@@ -15,6 +15,12 @@ which liveness rules out. ``firing_sequence`` does exactly that.
 
 When the counts differ, ``unequal_circuit`` names a directed circuit whose token count differs:
 the evidence a user can check by hand.
+
+Net automorphisms move markings between classes: the same net may carry a marking that is
+reachable from one placement of an initial marking and not from another. ``marking_orbit``
+lists every image of a marking under the automorphisms of the unmarked net (generators from
+nauty), and ``class_signature`` names the reachability class of a marking, so that a marking can
+be compared with all of them at once.
 """
 
 from __future__ import annotations
@@ -263,4 +269,215 @@ def nearest_earlier_marking(
     return None
 
 
-__all__ = ["firing_counts", "firing_sequence", "nearest_earlier_marking", "unequal_circuit"]
+Permutation = tuple[tuple[int, ...], tuple[int, ...]]  # (transition images, place images)
+
+
+def class_signature(graph: MarkedGraph, marking: Sequence[int]) -> tuple[int, ...]:
+    """A name of the reachability class of ``marking``: equal exactly for mutually reachable
+    markings of a live, strongly connected marked graph.
+
+    The token sums around the fundamental cycles of a spanning tree (each place off the tree
+    closes one; arcs walked against their direction count negatively). These cycles span the
+    cycle space, and two markings are linked by the state equation iff they agree on it (the
+    incidence matrix's image is the orthogonal complement of the cycle space; Murata 1989 §V).
+
+    >>> from zoo.core.net import build_net
+    >>> from zoo.core.params import ParameterSet
+    >>> net = build_net(ParameterSet(2, 1, 1, 1))
+    >>> len(class_signature(net, net.tokens)) == net.place_count - net.transition_count + 1
+    True
+    """
+    _check(graph, marking)
+    n = graph.transition_count
+    potential: list[int | None] = [None] * n
+    tree = [False] * graph.place_count
+    touching: list[list[int]] = [[] for _ in range(n)]
+    for place in range(graph.place_count):
+        touching[graph.pre[place]].append(place)
+        touching[graph.post[place]].append(place)
+    for root in range(n):
+        if potential[root] is not None:
+            continue
+        potential[root] = 0
+        queue = deque([root])
+        while queue:
+            t = queue.popleft()
+            for place in touching[t]:
+                u, v = graph.pre[place], graph.post[place]
+                pu, pv = potential[u], potential[v]
+                if pu is not None and pv is None:
+                    potential[v] = pu + marking[place]
+                    tree[place] = True
+                    queue.append(v)
+                elif pv is not None and pu is None:
+                    potential[u] = pv - marking[place]
+                    tree[place] = True
+                    queue.append(u)
+    known = [value or 0 for value in potential]
+    return tuple(
+        marking[place] + known[graph.pre[place]] - known[graph.post[place]]
+        for place in range(graph.place_count)
+        if not tree[place]
+    )
+
+
+def net_automorphisms(graph: MarkedGraph) -> list[Permutation]:
+    """Generators of the automorphism group of the unmarked net (McKay and Piperno 2014, nauty).
+
+    Each is (transition images, place images): transition i goes to ``images[0][i]``, place j
+    to ``images[1][j]``. The net is encoded as in ``zoo.core.canonical`` (a vertex per
+    transition, a tail and a head vertex per place) but without merging twins, so that the
+    generators act on every place.
+    """
+    import pynauty
+
+    n_t, n_p = graph.transition_count, graph.place_count
+    adjacency: dict[int, list[int]] = {}
+    for j in range(n_p):
+        tail, head = n_t + j, n_t + n_p + j
+        adjacency.setdefault(graph.pre[j], []).append(tail)
+        adjacency.setdefault(tail, []).append(head)
+        adjacency.setdefault(graph.post[j], []).append(head)
+    cells = [set(range(n_t)), set(range(n_t, n_t + n_p)), set(range(n_t + n_p, n_t + 2 * n_p))]
+    nauty_graph = pynauty.Graph(
+        n_t + 2 * n_p,
+        directed=False,
+        adjacency_dict=adjacency,
+        vertex_coloring=[cell for cell in cells if cell],
+    )
+    generators = pynauty.autgrp(nauty_graph)[0]
+    return [(tuple(g[:n_t]), tuple(g[n_t + j] - n_t for j in range(n_p))) for g in generators]
+
+
+def _apply(permutation: Permutation, marking: Sequence[int]) -> tuple[int, ...]:
+    moved = [0] * len(marking)
+    for j, image in enumerate(permutation[1]):
+        moved[image] = marking[j]
+    return tuple(moved)
+
+
+def _compose(second: Permutation, first: Permutation) -> Permutation:
+    """``second`` after ``first``."""
+    return (
+        tuple(second[0][i] for i in first[0]),
+        tuple(second[1][j] for j in first[1]),
+    )
+
+
+#: For every image in an orbit: the image it was reached from and the generator used (None for
+#: the start).
+Orbit = dict[tuple[int, ...], tuple[tuple[int, ...], int] | None]
+
+
+def marking_orbit(
+    graph: MarkedGraph,
+    marking: Sequence[int],
+    generators: Sequence[Permutation],
+    limit: int,
+) -> Orbit:
+    """Every image of ``marking`` under the group the generators span, breadth-first over the
+    generators (a finite group's orbit is closed under its generators alone); each image
+    records how it was reached, for ``orbit_automorphism``. ``LimitExceeded`` past ``limit``."""
+    _check(graph, marking)
+    start = tuple(marking)
+    found: Orbit = {start: None}
+    queue = deque([start])
+    while queue:
+        here = queue.popleft()
+        for index, generator in enumerate(generators):
+            image = _apply(generator, here)
+            if image not in found:
+                if len(found) >= limit:
+                    raise LimitExceeded(
+                        f"the automorphisms of {graph.describe()} move its marking to more than "
+                        f"{limit:,} places"
+                    )
+                found[image] = (here, index)
+                queue.append(image)
+    return found
+
+
+def orbit_automorphism(
+    graph: MarkedGraph, orbit: Orbit, generators: Sequence[Permutation], image: tuple[int, ...]
+) -> Permutation:
+    """An automorphism that maps the orbit's start onto ``image`` (composed along the path by
+    which ``marking_orbit`` reached it)."""
+    steps: list[int] = []
+    link = orbit[image]
+    while link is not None:
+        earlier, index = link
+        steps.append(index)
+        link = orbit[earlier]
+    result: Permutation = (tuple(range(graph.transition_count)), tuple(range(graph.place_count)))
+    for index in reversed(steps):
+        result = _compose(generators[index], result)
+    return result
+
+
+def nearest_source(
+    graph: MarkedGraph, sources: Sequence[Sequence[int]], target: Sequence[int], chunk: int = 256
+) -> tuple[int, tuple[int, ...]] | None:
+    """The source marking from which ``target`` is reached by the fewest firings, as (its index,
+    the firing counts), or None when ``target`` is reachable from none of them.
+
+    ``firing_counts`` for many sources at once (numpy, a chunk of sources per pass): the counts
+    are propagated along one breadth-first spanning tree of the net, then every place is checked
+    against the state equation. The graph must be connected.
+    """
+    import numpy as np
+
+    _check(graph, target, *sources[:1])
+    n = graph.transition_count
+    touching: list[list[int]] = [[] for _ in range(n)]
+    for place in range(graph.place_count):
+        touching[graph.pre[place]].append(place)
+        touching[graph.post[place]].append(place)
+    seen = [False] * n
+    seen[0] = True
+    order: list[tuple[int, int, int, int]] = []  # (new transition, known one, place, sign)
+    queue = deque([0])
+    while queue:
+        t = queue.popleft()
+        for place in touching[t]:
+            u, v = graph.pre[place], graph.post[place]
+            if u == t and not seen[v]:  # x[v] = x[u] - change
+                seen[v] = True
+                order.append((v, u, place, -1))
+                queue.append(v)
+            elif v == t and not seen[u]:  # x[u] = x[v] + change
+                seen[u] = True
+                order.append((u, v, place, 1))
+                queue.append(u)
+    if not all(seen):
+        raise FormatError(f"{graph.describe()} is not connected; reachability needs one net")
+    pre, post = np.array(graph.pre), np.array(graph.post)
+    goal = np.array(target, dtype=np.int64)
+    best: tuple[int, int, tuple[int, ...]] | None = None
+    for begin in range(0, len(sources), chunk):
+        block = np.array(sources[begin : begin + chunk], dtype=np.int64)
+        change = goal[None, :] - block  # = x[pre] - x[post], per source
+        x = np.zeros((len(block), n), dtype=np.int64)
+        for new, known, place, sign in order:
+            x[:, new] = x[:, known] + sign * change[:, place]
+        solved = np.all(change == x[:, pre] - x[:, post], axis=1)
+        x -= x.min(axis=1, keepdims=True)
+        totals = x.sum(axis=1)
+        for row in np.flatnonzero(solved):
+            if best is None or totals[row] < best[0]:
+                best = (int(totals[row]), begin + int(row), tuple(int(k) for k in x[row]))
+    return None if best is None else (best[1], best[2])
+
+
+__all__ = [
+    "Orbit",
+    "Permutation",
+    "class_signature",
+    "firing_counts",
+    "firing_sequence",
+    "marking_orbit",
+    "nearest_earlier_marking",
+    "nearest_source",
+    "orbit_automorphism",
+    "net_automorphisms",
+    "unequal_circuit",
+]

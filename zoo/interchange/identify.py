@@ -18,6 +18,13 @@ beta
 6. when no candidate is accepted, the reason is the first of: a place can come to hold two
    tokens (not 1-safe), more tokens than transitions, transitions that are not all alike, no
    cycloid with these observables, not isomorphic to the ones that have them.
+7. when no candidate is accepted as drawn, the marking may still be a *reachable* one: the
+   unmarked net is compared with the nets of every class of A transitions, alpha + beta tokens
+   and the same minimal cycle length, and for a match the marking is tested against every
+   placement of the initial marking that the net's automorphisms allow, by token counts on
+   circuits (``zoo.core.markings``: Commoner, Holt, Even and Pnueli 1971). A reachable marking
+   is reported with a shortest firing sequence from the initial marking, checked by firing it
+   on the file's own net; an unreachable one with a circuit whose token count differs.
 
 Identification goes by canonical form, so names and the order of elements in the file never
 change the answer. The accepted class is reported by its label (its smallest member), its
@@ -86,6 +93,11 @@ class Identification:
     observables: Observables | None = None
     transition_map: tuple[tuple[str, str], ...] = field(default=())
     place_map: tuple[tuple[str, str], ...] = field(default=())
+    marking: str | None = None  # "initial", "reachable" or "unreachable"
+    firing: tuple[str, ...] = ()
+    net_params: ParameterSet | None = None  # the class whose net it is, marking unreachable
+    net_class_id: str | None = None
+    circuit: Circuit | None = None
 
     def as_dict(self) -> dict[str, object]:
         """JSON-ready form (docs/identify.md lists the keys)."""
@@ -103,11 +115,16 @@ class Identification:
             "synthesized": [str(q) for q in self.synthesized],
             "observables": None if self.observables is None else self.observables.as_dict(),
             "mapping": None
-            if not self.cycloid
+            if not self.transition_map
             else {
                 "transitions": dict(self.transition_map),
                 "places": dict(self.place_map),
             },
+            "marking": self.marking,
+            "firing": list(self.firing) if self.cycloid else None,
+            "net_of": None if self.net_params is None else str(self.net_params),
+            "net_id": self.net_class_id,
+            "circuit": None if self.circuit is None else self.circuit.as_dict(),
         }
 
     def summary(self) -> str:
@@ -116,10 +133,47 @@ class Identification:
             return f"{self.source}: not a cycloid system: {self.reason}"
         p = self.params
         where = f"= {self.class_id}" if self.class_id else f"({self.catalog})"
+        state = ""
+        if self.marking == "reachable":
+            count = len(self.firing)
+            state = (
+                f" in a reachable marking, {count} firing{'s' if count != 1 else ''} from "
+                "the initial one"
+            )
         return (
-            f"{self.source}: cycloid system {p} {where}: area {p.area}, "
+            f"{self.source}: cycloid system {p} {where}{state}: area {p.area}, "
             f"{p.beta} forward + {p.alpha} backward tokens"
         )
+
+
+@dataclass(frozen=True)
+class Circuit:
+    """A directed circuit of the file's net whose token count differs from the one it carries
+    under the cycloid's initial marking (mapped by ``Identification.transition_map``'s
+    unmarked isomorphism): the evidence that a marking is not reachable."""
+
+    transitions: tuple[str, ...]
+    places: tuple[str, ...]
+    tokens: int
+    initial_tokens: int
+
+    def as_dict(self) -> dict[str, object]:
+        return {
+            "transitions": list(self.transitions),
+            "places": list(self.places),
+            "tokens": self.tokens,
+            "initial_tokens": self.initial_tokens,
+        }
+
+    def text(self) -> str:
+        nodes: list[str] = []
+        for t, place in zip(self.transitions, self.places, strict=True):
+            nodes += [t, place]
+        if len(nodes) > 2 * _SHOWN_CYCLE:
+            shown = " -> ".join(nodes[: 2 * _SHOWN_CYCLE]) + f" -> ... ({len(self.places)} places)"
+        else:
+            shown = " -> ".join([*nodes, self.transitions[0]])
+        return shown
 
 
 class _NotCycloid(Exception):
@@ -137,6 +191,7 @@ class _NotCycloid(Exception):
         # the JSON answer shows the numbers its reason quotes.
         self.synthesized = synthesized
         self.observables = observables
+        self.unreachable: Identification | None = None
 
 
 # --- structural checks ---------------------------------------------------------------------
@@ -443,6 +498,8 @@ def identify_net(
     try:
         return _identify(net, lookup if use_catalog else None)
     except _NotCycloid as refusal:
+        if refusal.unreachable is not None:
+            return refusal.unreachable
         return Identification(
             source=net.source,
             cycloid=False,
@@ -505,10 +562,268 @@ def _identify(net: PlaceTransitionNet, lookup: CatalogLookup | None) -> Identifi
                 (graph.transitions[i], target.transitions[k]) for i, k in enumerate(transition_map)
             ),
             place_map=tuple((graph.places[j], target.places[k]) for j, k in enumerate(place_map)),
+            marking="initial",
         )
+    # Not a cycloid system as drawn; perhaps a cycloid net in a reachable marking.
+    later = _identify_reachable(net, graph, seen, lookup)
+    if later is not None:
+        if later.cycloid:
+            return later
+        refusal = _NotCycloid(later.reason or "", later.synthesized, seen)
+        refusal.unreachable = later
+        raise refusal
     # The net passed the structural checks: the answer carries its observables and the
     # candidates, which the reason quotes (docs/identify.md).
     raise _NotCycloid(_refusal_reason(graph, seen, found), tuple(found), seen)
+
+
+#: Most images of the initial marking under net automorphisms that are compared with the file's
+#: marking one by one. Up to area 30 only the family C(1, n+2, 1, n) has more (2^n of them,
+#: twin transitions), and its state space is tiny; such nets are decided by an explicit search.
+ORBIT_LIMIT = 20_000
+
+#: Most reachable markings of the candidate class for the explicit search that takes over past
+#: ``ORBIT_LIMIT`` (docs/theory/state-counts.md gives the count in closed form).
+SEARCH_LIMIT = 200_000
+
+
+@dataclass(frozen=True)
+class _Reached:
+    """How the file's marking is reached from one placement of a candidate's initial marking."""
+
+    firing: tuple[int, ...]  # transitions of the file's net
+    transition_map: tuple[int, ...]  # file transition -> candidate transition
+    place_map: tuple[int, ...]
+
+
+def _identify_reachable(
+    net: PlaceTransitionNet, graph: MarkedGraph, seen: Observables, lookup: CatalogLookup | None
+) -> Identification | None:
+    """The class whose net this is and from whose initial marking the file's marking is
+    reachable; an answer with ``cycloid=False`` and a circuit when the net is a cycloid net whose
+    marking is not reachable; None when the unmarked net is no cycloid's net."""
+    from zoo.core.canonical import canonical_form, isomorphism_from_forms
+    from zoo.core.net import build_net
+    from zoo.core.synthesis import synthesize
+
+    loop = seen.loop or 0
+    if loop < 1 or seen.tokens < 2:
+        return None
+    # The token count and the minimal cycle length are the same in every reachable marking
+    # (each transition takes two tokens and gives two back), the number enabled is not: every
+    # split of the tokens is a candidate; one order per pair, the swap gives the same classes.
+    found: list[ParameterSet] = []
+    for alpha in range(1, seen.tokens // 2 + 1):
+        found += synthesize(seen.transitions, loop, alpha, seen.tokens - alpha)
+    labels = sorted(dict.fromkeys(_class_label(candidate) for candidate in found))
+    if not labels:
+        return None
+    if len(labels) > 1:
+        length = loop + 4
+        profile = closed_walk_counts(graph, 0, length)
+        labels = [q for q in labels if closed_walk_counts(build_net(q), 0, length) == profile]
+    form = canonical_form(graph, marked=False)
+    answers: list[tuple[int, ParameterSet, _Reached]] = []
+    unreachable: tuple[ParameterSet, Circuit, MarkedGraph, tuple[tuple[int, ...], ...]] | None = (
+        None
+    )
+    for params in labels:
+        target = build_net(params)
+        mapping = isomorphism_from_forms(
+            graph, form, target, canonical_form(target, marked=False), marked=False
+        )
+        if mapping is None:
+            continue
+        reached = _reach(graph, target, mapping)
+        if isinstance(reached, Circuit):
+            unreachable = unreachable or (params, reached, target, mapping)
+            continue
+        _check_firing(graph, target, reached)
+        answers.append((len(reached.firing), params, reached))
+    if answers:
+        _, params, reached = min(answers, key=lambda item: (item[0], item[1]))
+        target = build_net(params)
+        class_id, status = (
+            lookup(params, canonical_form(target, marked=True).fingerprint)
+            if lookup is not None
+            else (None, "catalog not consulted")
+        )
+        return Identification(
+            source=net.source,
+            cycloid=True,
+            params=params,
+            class_id=class_id,
+            catalog=status,
+            synthesized=tuple(found),
+            observables=seen,
+            transition_map=tuple(
+                (graph.transitions[i], target.transitions[k])
+                for i, k in enumerate(reached.transition_map)
+            ),
+            place_map=tuple(
+                (graph.places[j], target.places[k]) for j, k in enumerate(reached.place_map)
+            ),
+            marking="initial" if not reached.firing else "reachable",
+            firing=tuple(graph.transitions[t] for t in reached.firing),
+        )
+    if unreachable is None:
+        return None
+    params, circuit, net_of, (transition_map, place_map) = unreachable
+    class_id, status = (
+        lookup(params, None) if lookup is not None else (None, "catalog not consulted")
+    )
+    where = f" = {class_id}" if class_id else ""
+    return Identification(
+        source=net.source,
+        cycloid=False,
+        reason=(
+            f"the net of {params}{where} in a marking not reachable from its initial marking "
+            f"under any isomorphism: the circuit {circuit.text()} carries {circuit.tokens} "
+            f"token{'s' if circuit.tokens != 1 else ''}, {circuit.initial_tokens} at the "
+            "initial marking under the mapping given"
+        ),
+        catalog=status,
+        synthesized=tuple(found),
+        observables=seen,
+        transition_map=tuple(
+            (graph.transitions[i], net_of.transitions[k]) for i, k in enumerate(transition_map)
+        ),
+        place_map=tuple((graph.places[j], net_of.places[k]) for j, k in enumerate(place_map)),
+        marking="unreachable",
+        net_params=params,
+        net_class_id=class_id,
+        circuit=circuit,
+    )
+
+
+def _reach(
+    graph: MarkedGraph, target: MarkedGraph, mapping: tuple[tuple[int, ...], tuple[int, ...]]
+) -> _Reached | Circuit:
+    """A shortest way from some placement of the target's initial marking to the file's
+    marking, over every isomorphism of the unmarked nets, or the circuit that refutes
+    ``mapping`` when there is none.
+
+    Isomorphisms are ``mapping`` followed by an automorphism of the target net; an automorphism
+    sigma turns the question into: is the mapped marking reachable from sigma(M0)? The images
+    sigma(M0) are listed (``marking_orbit``) and the state equation is solved from all of them
+    at once (``nearest_source``); the smallest firing counts give the shortest sequence.
+    """
+    from zoo.core.markings import (
+        firing_sequence,
+        marking_orbit,
+        nearest_source,
+        net_automorphisms,
+        orbit_automorphism,
+        unequal_circuit,
+    )
+    from zoo.errors import LimitExceeded
+
+    transition_map, place_map = mapping
+    mapped = [0] * target.place_count
+    for j, k in enumerate(place_map):
+        mapped[k] = graph.tokens[j]
+    generators = net_automorphisms(target)
+    try:
+        orbit = marking_orbit(target, target.tokens, generators, ORBIT_LIMIT)
+    except LimitExceeded:
+        found = _reach_by_search(graph, target)
+        if found is not None:
+            return found
+    else:
+        images = list(orbit)
+        best = nearest_source(target, images, mapped)
+        if best is not None:
+            image = images[best[0]]
+            moves, place_moves = orbit_automorphism(target, orbit, generators, image)
+            sequence = firing_sequence(target, image, mapped) or []
+            back_t = [0] * target.transition_count
+            for i, k in enumerate(moves):
+                back_t[k] = i
+            back_p = [0] * target.place_count
+            for j, k in enumerate(place_moves):
+                back_p[k] = j
+            file_of = {k: i for i, k in enumerate(transition_map)}
+            return _Reached(
+                firing=tuple(file_of[t] for t in sequence),
+                transition_map=tuple(back_t[k] for k in transition_map),
+                place_map=tuple(back_p[k] for k in place_map),
+            )
+    circuit = unequal_circuit(target, target.tokens, mapped)
+    if circuit is None:  # pragma: no cover - the orbit contains M0 itself
+        raise ArithmeticError("the mapped marking is reachable but no placement reached it")
+    file_place = {k: j for j, k in enumerate(place_map)}
+    places = [file_place[k] for k in circuit]
+    return Circuit(
+        transitions=tuple(graph.transitions[graph.pre[j]] for j in places),
+        places=tuple(graph.places[j] for j in places),
+        tokens=sum(graph.tokens[j] for j in places),
+        initial_tokens=sum(target.tokens[k] for k in circuit),
+    )
+
+
+def _reach_by_search(graph: MarkedGraph, target: MarkedGraph) -> _Reached | None:
+    """The same question by explicit search, for nets with too many automorphic placements.
+
+    Breadth-first backwards from the file's marking (``nearest_earlier_marking``) until a
+    marking whose marked net is isomorphic to the target's initial one: the first one found is
+    at the smallest distance over every isomorphism. If the marking is reachable, its states are
+    exactly those of the target system, so a search that passes their number (closed formula,
+    docs/theory/state-counts.md) proves it unreachable.
+    """
+    from dataclasses import replace
+
+    from zoo.core.canonical import canonical_form, isomorphism_from_forms
+    from zoo.core.invariants import reachable_state_count
+    from zoo.core.markings import nearest_earlier_marking
+    from zoo.core.net import CycloidNet
+    from zoo.errors import LimitExceeded
+
+    assert isinstance(target, CycloidNet)
+    states = reachable_state_count(target.params)
+    if states > SEARCH_LIMIT:
+        raise LimitExceeded(
+            f"{graph.describe()} is the net of {target.params}, whose automorphisms place its "
+            f"initial marking in more than {ORBIT_LIMIT:,} ways and which has {states:,} "
+            f"reachable markings (search limit {SEARCH_LIMIT:,}); whether this marking is "
+            "reachable is not decided"
+        )
+    goal = canonical_form(target, marked=True)
+    enabled = enabled_transitions(target)
+
+    def initial_like(marking: tuple[int, ...]) -> bool:
+        candidate = replace(graph, tokens=marking)
+        if enabled_transitions(candidate) != enabled:
+            return False
+        return canonical_form(candidate, marked=True).text == goal.text
+
+    try:
+        found = nearest_earlier_marking(graph, initial_like, states)
+    except LimitExceeded:
+        return None
+    if found is None:
+        return None
+    marking, sequence = found
+    start = replace(graph, tokens=marking)
+    mapping = isomorphism_from_forms(start, canonical_form(start, marked=True), target, goal)
+    if mapping is None:  # pragma: no cover - initial_like compared the same forms
+        raise ArithmeticError("equal canonical forms but no isomorphism")
+    return _Reached(tuple(sequence), mapping[0], mapping[1])
+
+
+def _check_firing(graph: MarkedGraph, target: MarkedGraph, reached: _Reached) -> None:
+    """Fire the sequence on the file's own net from the initial marking that the reported
+    mapping pulls back: every step must be enabled and the last marking the file's."""
+    marking = [target.tokens[k] for k in reached.place_map]
+    for t in reached.firing:
+        inputs = graph.input_places(t)
+        if not all(marking[j] for j in inputs):
+            raise ArithmeticError(f"firing sequence step {graph.transitions[t]!r} is not enabled")
+        for j in inputs:
+            marking[j] -= 1
+        for j in graph.output_places(t):
+            marking[j] += 1
+    if tuple(marking) != graph.tokens:
+        raise ArithmeticError("the firing sequence does not end in the file's marking")
 
 
 def _refusal_reason(graph: MarkedGraph, seen: Observables, found: Sequence[ParameterSet]) -> str:
@@ -545,7 +860,10 @@ def identify_file(
 
 
 __all__ = [
+    "Circuit",
     "DIAGNOSTIC_LIMIT",
+    "ORBIT_LIMIT",
+    "SEARCH_LIMIT",
     "Identification",
     "Observables",
     "CatalogLookup",
