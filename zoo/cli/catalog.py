@@ -45,6 +45,8 @@ class FindFormat(StrEnum):
     csv = "csv"
     json = "json"
     jsonl = "jsonl"
+    markdown = "markdown"
+    latex = "latex"
 
 
 JobsOption = Annotated[
@@ -259,7 +261,12 @@ def find(
     ] = None,
     fmt: Annotated[
         FindFormat,
-        typer.Option("--format", "-f", help="table, csv, json (one array) or jsonl (JSON Lines)."),
+        typer.Option(
+            "--format",
+            "-f",
+            help="table, csv, json (one array), jsonl (JSON Lines), or for a paper markdown or "
+            "latex (a table float; the completeness note is its caption).",
+        ),
     ] = FindFormat.table,
     count: Annotated[
         bool,
@@ -375,6 +382,9 @@ def _print_find(result: FindResult, fmt: FindFormat, columns: Sequence[str] | No
     summary = ("1 class matches" if result.total == 1 else f"{result.total:,} classes match") + (
         f"; showing {shown:,}." if shown < result.total else "."
     )
+    if fmt in (FindFormat.markdown, FindFormat.latex):
+        _print_paper_table(result, fmt, names, custom, f"{summary} {note}")
+        return
     if fmt is FindFormat.table:
         from rich.table import Table
 
@@ -436,6 +446,30 @@ def _print_find(result: FindResult, fmt: FindFormat, columns: Sequence[str] | No
     else:
         for item in objects:
             typer.echo(json.dumps(item, ensure_ascii=False))
+
+
+def _print_paper_table(
+    result: FindResult, fmt: FindFormat, names: Sequence[str], custom: bool, caption: str
+) -> None:
+    """A table for a paper (zoo.publish.tables) with exact typed values and the note."""
+    from zoo.publish.tables import render
+
+    rows = [
+        [
+            entry.id,
+            entry.label,
+            entry.area,
+            *(
+                (result.values[index].get(n) if result.values else None)
+                if custom
+                else _default_value(entry, n)
+                for n in names
+            ),
+            len(entry.members),
+        ]
+        for index, entry in enumerate(result.entries)
+    ]
+    sys.stdout.write(render(fmt.value, ["id", "label", "area", *names, "members"], rows, caption))
 
 
 # --- show ID ---------------------------------------------------------------------------------
