@@ -214,6 +214,9 @@ def _handle(key: Key) -> Any:
             color=key.colour,
             linewidth=1.5,
             linestyle="--" if key.glyph == "dashed" else "-",
+            marker="none" if key.face == "none" else "s",
+            markerfacecolor=key.face,
+            markersize=6,
             label=key.meaning,
         )
     marker = {"square": "s", "dashed-square": "s", "circle": "o", "dot": "o"}[key.glyph]

@@ -171,11 +171,14 @@ def _side_text(scene: Scene) -> list[str]:
     out = []
     x = x1 + scene.units(6)
     rows = [scene.side_text[i : i + SIDE_ROWS] for i in range(0, len(scene.side_text), SIDE_ROWS)]
+    # Spaces become ~ (unbreakable, kept as typed) so that the monospaced columns line up.
     for number, column in enumerate(rows):
         lines = ([scene.side_heading] if scene.side_heading and number == 0 else [""]) + column
         out.append(
             rf"\node[anchor=north west,align=left,inner sep=0pt,font={_font(7, monospace=True)}] "
-            rf"at {_point((x, y1))} {{" + r"\\".join(tex_text(line) or "~" for line in lines) + "};"
+            rf"at {_point((x, y1))} {{"
+            + r"\\".join(tex_text(line).replace(" ", "~") or "~" for line in lines)
+            + "};"
         )
         x += scene.units(max(len(line) for line in lines) * 7 * 0.53 + 10)
     return out
@@ -201,9 +204,17 @@ def _glyph(key: Key, at: tuple[float, float], scene: Scene, colours: _Colours) -
     colour = colours[key.colour]
     if key.glyph in ("line", "dashed"):
         dashed = ",dashed" if key.glyph == "dashed" else ""
-        return (
+        line = (
             rf"\draw[draw={colour},line width=1.5pt{dashed}] {_point((x, y))} -- "
             rf"{_point((x + scene.units(20), y))};"
+        )
+        if key.face == "none":
+            return line
+        # A line with a square on it: arcs and nodes of one colour (a process).
+        middle = _point((x + scene.units(10), y))
+        return line + (
+            rf" \node[rectangle,inner sep=0pt,minimum size=6pt,fill={colours[key.face]}] "
+            rf"at {middle} {{}};"
         )
     middle = _point((x + scene.units(10), y))
     if key.glyph == "dot":

@@ -292,11 +292,16 @@ def _plot_parallelogram(scene: Scene, net: NetPicture) -> None:
     scene.key("line", style.FORWARD.colour, "forward place and its arcs")
     scene.key("line", style.BACKWARD.colour, "backward place and its arcs")
     scene.key("dot", style.TOKEN.colour, "token of the initial marking")
+    for arc in scene.arcs:
+        if arc.dashed:
+            kind = "forward" if arc.colour == style.FORWARD.colour else "backward"
+            scene.key("dashed", arc.colour, f"{kind} arc leaving the parallelogram (dashed)")
     if ghosts:
         scene.key(
             "dashed-square",
             style.FOLDED_COPY.colour,
-            "arc leaving the parallelogram (dashed) to a folded copy \u2261 of a transition",
+            "folded copy \u2261 of the transition such an arc reaches",
+            "#ffffff",
         )
     scene.key("line", style.LATTICE_VECTOR.colour, style.LATTICE_VECTOR.meaning)
     scene.title = (
@@ -408,7 +413,8 @@ def _plot_rings(scene: Scene, net: NetPicture, coloured: bool) -> None:
         length = p.area // count
         for i in range(count):
             ink = style.process_ink(i)
-            scene.key("square", ink.colour, f"process {i} ({length} steps)", ink.colour)
+            # A line with a square: the process's arcs and its transitions.
+            scene.key("line", ink.colour, f"process {i} ({length} steps)", ink.colour)
         scene.key("line", style.RELEASE.colour, "release messages (backward places)")
         if wraps:
             scene.key(
