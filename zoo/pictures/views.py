@@ -292,10 +292,10 @@ def _plot_parallelogram(scene: Scene, net: NetPicture) -> None:
     scene.key("line", style.FORWARD.colour, "forward place and its arcs")
     scene.key("line", style.BACKWARD.colour, "backward place and its arcs")
     scene.key("dot", style.TOKEN.colour, "token of the initial marking")
-    for arc in scene.arcs:
-        if arc.dashed:
-            kind = "forward" if arc.colour == style.FORWARD.colour else "backward"
-            scene.key("dashed", arc.colour, f"{kind} arc leaving the parallelogram (dashed)")
+    for drawn in scene.arcs:
+        if drawn.dashed:
+            kind = "forward" if drawn.colour == style.FORWARD.colour else "backward"
+            scene.key("dashed", drawn.colour, f"{kind} arc leaving the parallelogram (dashed)")
     if ghosts:
         scene.key(
             "dashed-square",
