@@ -176,7 +176,7 @@ def _draw(ax: Any, scene: Scene) -> None:
             handles=[_handle(key) for key in scene.legend],
             loc="upper left",
             bbox_to_anchor=(0.0, 0.0),
-            fontsize=8,
+            fontsize=scene.legend_size,
             frameon=False,
             ncol=1 if scene.width_inches < 7 else 2,
             handlelength=2.6,

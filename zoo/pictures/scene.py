@@ -142,6 +142,11 @@ class Scene:
         width, never below ``base``)."""
         return max(base, min(28.0, self.width_inches * 72.0 / 60.0))
 
+    @property
+    def legend_size(self) -> float:
+        """The legend's font size in points: 8, larger on a large page (1/90 of its width)."""
+        return max(8.0, min(16.0, self.width_inches * 72.0 / 90.0))
+
     # --- building ------------------------------------------------------------------------
 
     def arc(

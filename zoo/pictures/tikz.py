@@ -188,12 +188,13 @@ def _legend(scene: Scene, colours: _Colours) -> list[str]:
     """One line per key under the page rectangle: the glyph, then what it means."""
     x0, _, y0, _ = scene.extent
     out = []
-    step = scene.units(11)
+    size = scene.legend_size
+    step = scene.units(size * 1.4)
     for number, key in enumerate(scene.legend):
         y = y0 - step * (number + 1)
         out.append(_glyph(key, (x0 + scene.units(4), y), scene, colours))
         out.append(
-            rf"\node[anchor=west,inner sep=0pt,font={_font(8)}] at "
+            rf"\node[anchor=west,inner sep=0pt,font={_font(size)}] at "
             rf"{_point((x0 + scene.units(30), y))} {{{tex_text(key.meaning)}}};"
         )
     return out

@@ -500,7 +500,7 @@ def return_routes(
 ) -> dict[int, list[Point]]:
     """Paths of the arcs back to earlier layers, by arc index.
 
-    Each runs in a lane of its own outside the layered graph, on the side of its source (left
+    Each runs in a lane of its own outside the layered graph, on the side of its target (left
     half to the left, right half to the right): out sideways from its source, down its lane,
     and into its target from that side at a height of its own, so that arcs to one marking
     (the reversible system returns to M0 often, docs/theory/cycles-and-tokens.md) arrive
@@ -519,7 +519,12 @@ def return_routes(
     for i in back:
         a, b, _ = arcs[i]
         (xa, ya), (xb, yb) = positions[a], positions[b]
-        side = "left" if xa < 0 or (xa == 0 and lanes["left"] <= lanes["right"]) else "right"
+        # The side of the target, so that the arc enters it from outside the graph (the side of
+        # the source for a target in the middle, the emptier side when both are).
+        toward = xb if abs(xb) > 1e-9 else xa
+        if abs(toward) <= 1e-9:
+            toward = -1.0 if lanes["left"] <= lanes["right"] else 1.0
+        side = "left" if toward < 0 else "right"
         lanes[side] += 1
         sign = -1.0 if side == "left" else 1.0
         edge = left_edge if side == "left" else right_edge
