@@ -1,8 +1,10 @@
 """Pictures of a cycloid: its fundamental parallelogram, its net, its processes, its states.
 
-Four views, each as SVG or PNG (matplotlib, Agg backend); the same views as Graphviz DOT text are
-zoo.interchange.dot's (``picture_dot``). Node positions come from zoo.pictures.layout and colours
-from zoo.pictures.style, which the DOT text shares:
+Four views, each built once as a Scene of drawing primitives (zoo.pictures.scene) and rendered as
+SVG, PNG or PDF (zoo.pictures.render_matplotlib) or TikZ (zoo.pictures.tikz), so every format has
+the same picture and legend; the same views as Graphviz DOT text are zoo.interchange.dot's
+(``picture_dot``). Node positions come from zoo.pictures.layout and colours from
+zoo.pictures.style, which the DOT text shares:
 
 * ``parallelogram``: the fundamental parallelogram O, P, Q = P + R, R in the Petri space with
   the lattice vectors P = (alpha, -beta) and R = (gamma, delta), the A folded transitions (one
@@ -21,7 +23,8 @@ from zoo.pictures.style, which the DOT text shares:
   between
   processes, in grey.
 * ``states``: the reachability graph of a small system, layered by distance from the initial
-  marking (which is at the bottom), with a state limit checked against the closed formula of
+  marking (which is at the bottom), each marking listed beside it as its marked places, arcs
+  back to earlier layers in lanes of their own outside the graph, with a state limit checked against the closed formula of
   docs/theory/state-counts.md before anything is explored.
 """
 
