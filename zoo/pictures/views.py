@@ -24,8 +24,8 @@ zoo.pictures.style, which the DOT text shares:
   processes, in grey.
 * ``states``: the reachability graph of a small system, layered by distance from the initial
   marking (which is at the bottom), each marking listed beside it as its marked places, arcs
-  back to earlier layers in lanes of their own outside the graph, with a state limit checked against the closed formula of
-  docs/theory/state-counts.md before anything is explored.
+  back to earlier layers in lanes of their own outside the graph, with a state limit checked
+  against the closed formula of docs/theory/state-counts.md before anything is explored.
 """
 
 from __future__ import annotations
