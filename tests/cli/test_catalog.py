@@ -223,7 +223,7 @@ def test_stats_json_and_plots(db: str, tmp_path: Path) -> None:
     assert invoke("stats", "--db", db, "--plot", str(svg)).exit_code == 0
     assert b"<svg" in svg.read_bytes()[:500]
     bad = invoke("stats", "--db", db, "--plot", str(tmp_path / "s.gif"))
-    assert bad.exit_code == 1 and "write to a .png or .svg file" in bad.stderr
+    assert bad.exit_code == 1 and "write to a .png, .svg or .pdf file" in bad.stderr
 
 
 def test_stats_table_total(db: str) -> None:

@@ -258,3 +258,80 @@ def test_state_arc_labels_of_crossing_arcs_do_not_coincide() -> None:
     for i, (x1, y1) in enumerate(spots):
         for x2, y2 in spots[i + 1 :]:
             assert math.hypot(x1 - x2, y1 - y2) > 10, (x1, y1)
+
+
+# --- legends, markings and return arcs (one scene for every format) -------------------------
+
+
+@pytest.mark.parametrize(
+    ("view", "p"),
+    [
+        ("parallelogram", C4223),
+        ("net", C4223),
+        ("net", ParameterSet(1, 2, 1, 2)),
+        ("processes", ParameterSet(3, 2, 6, 6)),
+        ("states", ParameterSet(2, 2, 1, 3)),
+    ],
+)
+def test_legend_explains_every_colour_and_line_style(view: str, p: ParameterSet) -> None:
+    from zoo.pictures.views import picture_scene
+
+    scene = picture_scene(p, view)
+    keys = {(key.colour, key.glyph) for key in scene.legend}
+    for arc in scene.arcs:
+        assert (arc.colour, "dashed" if arc.dashed else "line") in keys, arc
+    explained = {key.colour for key in scene.legend} | {key.face for key in scene.legend}
+    for group in scene.nodes:
+        for colour in (*group.faces, *group.edges):
+            assert colour in explained or colour == "#ffffff", (group.gid, colour)
+
+
+def test_states_view_lists_each_marking() -> None:
+    """C(2,2,1,3): A * C(alpha+beta, alpha)/(alpha+beta) = 8 * 6 / 4 = 12 markings
+    (docs/theory/state-counts.md), each with alpha + beta = 4 tokens
+    (docs/theory/initial-marking.md), all different; M0 is the initial marking."""
+    from zoo.pictures.views import picture_scene
+
+    p = ParameterSet(2, 2, 1, 3)
+    net = net_picture(p)
+    scene = picture_scene(p, "states")
+    assert len(scene.side_text) == 12
+    markings = []
+    for i, line in enumerate(scene.side_text):
+        name, *places = line.split()
+        assert name == f"M{i}"
+        assert len(places) == p.alpha + p.beta
+        assert set(places) <= set(net.places)
+        markings.append(frozenset(places))
+    assert len(set(markings)) == 12
+    assert markings[0] == {net.places[j] for j, k in enumerate(net.tokens) if k}
+    svg = draw(p, "states", "svg").decode()
+    assert "M11" in svg and scene.side_text[11].split()[1] in svg
+
+
+def test_states_view_return_arcs_do_not_converge_on_one_point() -> None:
+    """Arcs back to earlier layers run outside the layered graph and reach their target at
+    different points: no two arrow tips coincide."""
+    from zoo.pictures.views import picture_scene
+
+    for p in (ParameterSet(2, 2, 1, 3), ParameterSet(2, 3, 1, 2), ParameterSet(3, 2, 2, 1)):
+        scene = picture_scene(p, "states")
+        states = next(group for group in scene.nodes if group.gid == "states")
+        left = min(x for x, _ in states.points)
+        right = max(x for x, _ in states.points)
+        back = [arc for arc in scene.arcs if arc.dashed]
+        assert back
+        tips = [(round(a.path[-1][0], 3), round(a.path[-1][1], 3)) for a in back]
+        assert len(set(tips)) == len(tips), p
+        for arc in back:
+            assert any(x < left or x > right for x, _ in arc.path), p
+
+
+def test_export_svg_draws_the_parallelogram() -> None:
+    from zoo.interchange.export import export_document
+
+    svg = export_document(C4223, "svg").encode()
+    root = ElementTree.fromstring(svg)
+    assert any(e.get("id") == "parallelogram" for e in root.iter())
+    result = CliRunner().invoke(app, ["export", "--help"])
+    assert "parallelogram" in " ".join(result.output.split())

@@ -45,6 +45,8 @@ class FindFormat(StrEnum):
     csv = "csv"
     json = "json"
     jsonl = "jsonl"
+    markdown = "markdown"
+    latex = "latex"
 
 
 JobsOption = Annotated[
@@ -259,7 +261,12 @@ def find(
     ] = None,
     fmt: Annotated[
         FindFormat,
-        typer.Option("--format", "-f", help="table, csv, json (one array) or jsonl (JSON Lines)."),
+        typer.Option(
+            "--format",
+            "-f",
+            help="table, csv, json (one array), jsonl (JSON Lines), or for a paper markdown or "
+            "latex (a table float; the completeness note is its caption).",
+        ),
     ] = FindFormat.table,
     count: Annotated[
         bool,
@@ -374,6 +381,9 @@ def _print_find(result: FindResult, fmt: FindFormat, columns: Sequence[str] | No
     summary = ("1 class matches" if result.total == 1 else f"{result.total:,} classes match") + (
         f"; showing {shown:,}." if shown < result.total else "."
     )
+    if fmt in (FindFormat.markdown, FindFormat.latex):
+        _print_paper_table(result, fmt, names, custom, f"{summary} {note}")
+        return
     if fmt is FindFormat.table:
         from rich.table import Table
 
@@ -434,6 +444,30 @@ def _print_find(result: FindResult, fmt: FindFormat, columns: Sequence[str] | No
     else:
         for item in objects:
             typer.echo(json.dumps(item, ensure_ascii=False))
+
+
+def _print_paper_table(
+    result: FindResult, fmt: FindFormat, names: Sequence[str], custom: bool, caption: str
+) -> None:
+    """A table for a paper (zoo.publish.tables) with exact typed values and the note."""
+    from zoo.publish.tables import render
+
+    rows = [
+        [
+            entry.id,
+            entry.label,
+            entry.area,
+            *(
+                (result.values[index].get(n) if result.values else None)
+                if custom
+                else _default_value(entry, n)
+                for n in names
+            ),
+            len(entry.members),
+        ]
+        for index, entry in enumerate(result.entries)
+    ]
+    sys.stdout.write(render(fmt.value, ["id", "label", "area", *names, "members"], rows, caption))
 
 
 # --- show ID ---------------------------------------------------------------------------------
@@ -561,7 +595,9 @@ def stats(
     ] = TableOrJson.table,
     plot: Annotated[
         Path | None,
-        typer.Option("--plot", dir_okay=False, help="Also draw the counts to a .png or .svg file."),
+        typer.Option(
+            "--plot", dir_okay=False, help="Also draw the counts to a .png, .svg or .pdf file."
+        ),
     ] = None,
     db: ReadOnlyCatalogOption = None,
 ) -> None:
@@ -572,10 +608,10 @@ def stats(
     from zoo.catalog.service import Catalog
 
     try:
-        if plot is not None and plot.suffix.lower() not in (".png", ".svg"):
+        if plot is not None and plot.suffix.lower() not in (".png", ".svg", ".pdf"):
             raise ParameterError(
                 f"--plot {plot} has suffix {plot.suffix or '(none)'!r}; "
-                "write to a .png or .svg file"
+                "write to a .png, .svg or .pdf file"
             )
         with Catalog.open(db) as catalog:
             rows = [s for s in catalog.stats() if s.complete]
@@ -618,7 +654,8 @@ def stats(
 
 
 def draw_stats(rows: Sequence[AreaStats], path: Path) -> None:
-    """Draw the per-area counts (log scale) to a PNG or SVG file with matplotlib's Agg backend."""
+    """Draw the per-area counts (log scale) to a PNG, SVG or PDF file with matplotlib's Agg
+    backend (PDF for a paper: vector lines, fonts embedded, no creation date)."""
     from zoo.errors import import_extra
 
     matplotlib = import_extra("matplotlib", "plots", "zoo stats --plot")
@@ -654,7 +691,10 @@ def draw_stats(rows: Sequence[AreaStats], path: Path) -> None:
     axes.legend()
     figure.tight_layout()
     try:
-        figure.savefig(path, format=path.suffix.lower().lstrip("."))
+        fmt = path.suffix.lower().lstrip(".")
+        metadata = {"svg": {"Date": None}, "pdf": {"CreationDate": None}}.get(fmt)
+        with matplotlib.rc_context({"pdf.fonttype": 42, "svg.hashsalt": "zoo"}):
+            figure.savefig(path, format=fmt, metadata=metadata)
     except OSError as exc:
         raise ZooError(f"cannot write the plot {path}: {exc.strerror}") from None
 

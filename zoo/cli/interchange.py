@@ -88,7 +88,8 @@ def export(
         typer.Option(
             "--format",
             "-f",
-            help="pnml (ISO/IEC 15909-2 PT net), dot (Graphviz text), svg (picture), json, or "
+            help="pnml (ISO/IEC 15909-2 PT net), dot (Graphviz text), svg (the fundamental "
+            "parallelogram picture of zoo draw), json, or "
             "text (zoo's marked-graph text). Default: from the --output suffix, else pnml.",
         ),
     ] = None,

@@ -12,6 +12,7 @@ import typer
 
 from zoo.cli.app import app, fail
 from zoo.cli.options import (
+    FLAG,
     LOOSE_ARGUMENTS,
     ReadOnlyCatalogOption,
     ReferenceArgument,
@@ -27,6 +28,8 @@ class PictureFormat(StrEnum):
 
     svg = "svg"
     png = "png"
+    pdf = "pdf"
+    tikz = "tikz"
     dot = "dot"
 
 
@@ -50,7 +53,9 @@ def draw(
         typer.Option(
             "--format",
             "-f",
-            help="svg, png or dot (Graphviz text). Default: from the --output suffix, else svg.",
+            help="svg, png, pdf, tikz (LaTeX: a standalone document, or with --fragment a "
+            "tikzpicture for \\input) or dot (Graphviz text). Default: from the --output "
+            "suffix, else svg.",
         ),
     ] = None,
     view: Annotated[
@@ -71,6 +76,15 @@ def draw(
             dir_okay=False,
         ),
     ] = None,
+    fragment: Annotated[
+        bool,
+        typer.Option(
+            "--fragment",
+            metavar=FLAG,
+            help="With --format tikz: only the tikzpicture environment, to \\input in a paper "
+            "that loads tikz and the arrows.meta library.",
+        ),
+    ] = False,
     db: ReadOnlyCatalogOption = None,
 ) -> None:
     """Draw a cycloid: its fundamental parallelogram, net, processes or reachability graph.
@@ -78,22 +92,30 @@ def draw(
     Example: zoo draw 4,2,2,3 --view parallelogram --output c4223.png
     """
     from zoo.pictures.views import draw as draw_picture
+    from zoo.pictures.views import draw_tikz
 
     refuse_unknown_options("draw", ref)
     try:
         chosen = _picture_format(fmt, output)
+        if fragment and chosen is not PictureFormat.tikz:
+            raise ZooError(
+                f"--fragment applies to TikZ pictures only, not {chosen.value}; "
+                "add --format tikz or leave out --fragment"
+            )
         p = resolve_params(" ".join(ref), db)
-        if chosen is PictureFormat.dot:
+        if chosen is PictureFormat.tikz:
+            data = draw_tikz(p, view.value, standalone=not fragment).encode()
+        elif chosen is PictureFormat.dot:
             from zoo.interchange.dot import picture_dot
 
             data = picture_dot(p, view.value).encode()
         else:
             data = draw_picture(p, view.value, chosen.value)
         if output is None:
-            if chosen is PictureFormat.png:
+            if chosen in (PictureFormat.png, PictureFormat.pdf):
                 raise ZooError(
-                    "a PNG picture is binary and is not written to the terminal; "
-                    "give --output FILE.png"
+                    f"a {chosen.value.upper()} picture is binary and is not written to the "
+                    f"terminal; give --output FILE.{chosen.value}"
                 )
             sys.stdout.write(data.decode())
             return
@@ -109,6 +131,9 @@ def draw(
 PICTURE_SUFFIXES = {
     ".svg": PictureFormat.svg,
     ".png": PictureFormat.png,
+    ".pdf": PictureFormat.pdf,
+    ".tex": PictureFormat.tikz,
+    ".tikz": PictureFormat.tikz,
     ".dot": PictureFormat.dot,
     ".gv": PictureFormat.dot,
 }
@@ -125,5 +150,5 @@ def _picture_format(fmt: PictureFormat | None, output: Path | None) -> PictureFo
         return PICTURE_SUFFIXES[suffix]
     raise FormatError(
         f"cannot tell the picture format from the suffix {suffix or '(none)'!r} of {output}; "
-        f"name the file {', '.join(PICTURE_SUFFIXES)} or give --format svg, png or dot"
+        f"name the file {', '.join(PICTURE_SUFFIXES)} or give --format svg, png, pdf, tikz or dot"
     )

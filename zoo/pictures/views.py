@@ -1,8 +1,10 @@
 """Pictures of a cycloid: its fundamental parallelogram, its net, its processes, its states.
 
-Four views, each as SVG or PNG (matplotlib, Agg backend); the same views as Graphviz DOT text are
-zoo.interchange.dot's (``picture_dot``). Node positions come from zoo.pictures.layout and colours
-from zoo.pictures.style, which the DOT text shares:
+Four views, each built once as a Scene of drawing primitives (zoo.pictures.scene) and rendered as
+SVG, PNG or PDF (zoo.pictures.render_matplotlib) or TikZ (zoo.pictures.tikz), so every format has
+the same picture and legend; the same views as Graphviz DOT text are zoo.interchange.dot's
+(``picture_dot``). Node positions come from zoo.pictures.layout and colours from
+zoo.pictures.style, which the DOT text shares:
 
 * ``parallelogram``: the fundamental parallelogram O, P, Q = P + R, R in the Petri space with
   the lattice vectors P = (alpha, -beta) and R = (gamma, delta), the A folded transitions (one
@@ -21,23 +23,20 @@ from zoo.pictures.style, which the DOT text shares:
   between
   processes, in grey.
 * ``states``: the reachability graph of a small system, layered by distance from the initial
-  marking (which is at the bottom), with a state limit checked against the closed formula of
-  docs/theory/state-counts.md before anything is explored.
+  marking (which is at the bottom), each marking listed beside it as its marked places, arcs
+  back to earlier layers in lanes of their own outside the graph, with a state limit checked
+  against the closed formula of docs/theory/state-counts.md before anything is explored.
 """
 
 from __future__ import annotations
 
-import io
 import math
-import re
-from collections.abc import Callable, Sequence
+from collections.abc import Sequence
 from dataclasses import dataclass
-from itertools import pairwise
-from typing import Any
 
 from zoo.core.invariants import is_regular, reachable_state_count
 from zoo.core.params import ParameterSet
-from zoo.errors import LimitExceeded, ParameterError, import_extra
+from zoo.errors import LimitExceeded, ParameterError
 from zoo.pictures import style
 from zoo.pictures.layout import (
     Point,
@@ -51,9 +50,11 @@ from zoo.pictures.layout import (
     state_layers,
     state_positions,
 )
+from zoo.pictures.render_matplotlib import PNG_DPI as PNG_DPI  # the resolution, for callers
+from zoo.pictures.scene import Area, Arrow, Scene
 
 VIEWS = ("parallelogram", "net", "processes", "states")
-FORMATS = ("svg", "png")
+FORMATS = ("svg", "png", "pdf", "tikz")
 
 #: Largest area drawn in the net views: beyond it nodes and labels no longer fit a page.
 DRAW_AREA_LIMIT = 400
@@ -111,25 +112,48 @@ def net_picture(p: ParameterSet) -> NetPicture:
 def draw(p: ParameterSet, view: str = "parallelogram", fmt: str = "svg") -> bytes:
     """The picture of C(p) in the given view and format, as the bytes of the file.
 
-    Raises ParameterError for an unknown view or format, or for the processes view of a
-    cycloid that is not regular; LimitExceeded for a system too large to draw.
+    svg, png and pdf come from matplotlib, tikz (a standalone LaTeX document) from
+    zoo.pictures.tikz; all four draw the same scene. Raises ParameterError for an unknown view
+    or format, or for the processes view of a cycloid that is not regular; LimitExceeded for a
+    system too large to draw.
     """
     if fmt not in FORMATS:
         hint = " (DOT text: zoo.interchange.dot.picture_dot)" if fmt == "dot" else ""
         raise ParameterError(
             f"unknown picture format {fmt!r}; choose one of {', '.join(FORMATS)}{hint}"
         )
+    scene = picture_scene(p, view)
+    if fmt == "tikz":
+        from zoo.pictures.tikz import tikz_document
+
+        return tikz_document(scene).encode()
+    from zoo.pictures.render_matplotlib import render
+
+    return render(scene, fmt)
+
+
+def draw_tikz(p: ParameterSet, view: str = "parallelogram", standalone: bool = True) -> str:
+    """TikZ text of the picture: a standalone document, or (``standalone=False``) only the
+    ``tikzpicture`` environment, for ``\\input`` in a paper that loads tikz."""
+    from zoo.pictures.tikz import tikz_document, tikz_picture
+
+    scene = picture_scene(p, view)
+    return tikz_document(scene) if standalone else tikz_picture(scene)
+
+
+def picture_scene(p: ParameterSet, view: str) -> Scene:
+    """The drawing primitives of a view of C(p) (zoo.pictures.scene), before any format."""
     check_view(p, view)
     if view == "states":
-        return _draw_states(p, fmt)
+        return _states_scene(p)
     net = net_picture(p)
     if view == "parallelogram":
-        return _render(
-            lambda canvas: _plot_parallelogram(canvas, net), _parallelogram_size(net), fmt
-        )
-    return _render(
-        lambda canvas: _plot_rings(canvas, net, coloured=view == "processes"), _rings_size(net), fmt
-    )
+        scene = Scene(*_parallelogram_size(net))
+        _plot_parallelogram(scene, net)
+        return scene
+    scene = Scene(*_rings_size(net))
+    _plot_rings(scene, net, coloured=view == "processes")
+    return scene
 
 
 def check_view(p: ParameterSet, view: str) -> None:
@@ -144,8 +168,8 @@ def check_view(p: ParameterSet, view: str) -> None:
         )
 
 
-def draw_net_svg(p: ParameterSet, view: str = "net") -> str:
-    """SVG text of the net of C(p) (for ``zoo export --format svg``)."""
+def draw_net_svg(p: ParameterSet, view: str = "parallelogram") -> str:
+    """SVG text of a view of C(p), the parallelogram by default (``zoo export --format svg``)."""
     return draw(p, view, "svg").decode()
 
 
@@ -159,11 +183,12 @@ def _parallelogram_extent(p: ParameterSet) -> tuple[float, float, float, float]:
     return (min(xs) - 2.5, max(xs) + 2.5, min(ys) - 1.5, max(ys) + 1.8)
 
 
-#: Resolution of PNG pictures, dots per inch.
-PNG_DPI = 110
 #: Longest side of a picture, in inches: at PNG_DPI about 2,000 pixels, a size an image viewer
-#: or a paper's figure shows whole (common practice); larger nets are drawn smaller instead.
-LARGEST_INCHES = 17.5
+#: or a paper's figure shows whole with its title and legend (common practice); larger nets are
+#: drawn smaller instead.
+LARGEST_INCHES = 16.5
+
+Extent = tuple[tuple[float, float, float, float], float]  # (x0, x1, y0, y1), inches per unit
 
 
 def _scale(
@@ -173,52 +198,38 @@ def _scale(
     return min(unit, largest / max(width, height, 1.0))
 
 
-def _title_size(canvas: _Canvas, base: float) -> float:
-    """A title font size in points that stays readable on a large page (about 1/60 of its
-    width, never below ``base``)."""
-    width_inches = float(canvas.ax.figure.get_size_inches()[0])
-    return max(base, min(28.0, width_inches * 72.0 / 60.0))
-
-
 def _parallelogram_size(net: NetPicture) -> Extent:
     x0, x1, y0, y1 = _parallelogram_extent(net.params)
-    return (x0, x1, y0, y1, _scale(x1 - x0, y1 - y0))
+    return (x0, x1, y0, y1), _scale(x1 - x0, y1 - y0)
 
 
-def _plot_parallelogram(canvas: _Canvas, net: NetPicture) -> None:
-    from matplotlib.patches import Polygon
-
-    ax, s = canvas.ax, canvas.scale
+def _plot_parallelogram(scene: Scene, net: NetPicture) -> None:
+    s = scene.scale
     p = net.params
     show_labels = len(net.transitions) <= LABEL_LIMIT
     corners = [petri_to_page(c) for c in parallelogram_corners(p)]
-    poly = Polygon(
-        corners,
-        closed=True,
-        facecolor=style.PARALLELOGRAM_FACE.colour,
-        edgecolor=style.PARALLELOGRAM_EDGE.colour,
-        linewidth=1.0,
-        linestyle="--",
-        zorder=0,
+    scene.areas.append(
+        Area(
+            tuple(corners),
+            face=style.PARALLELOGRAM_FACE.colour,
+            edge=style.PARALLELOGRAM_EDGE.colour,
+            dashed=True,
+        )
     )
-    poly.set_gid("parallelogram")
-    ax.add_patch(poly)
     for name, corner in zip("OPQR", corners, strict=True):
-        ax.annotate(
+        scene.label(
             name,
             corner,
-            xytext=(-10, -4) if name in "OR" else (6, -4),
-            textcoords="offset points",
-            fontsize=11 * s / 0.75 + 1,
-            color=style.LATTICE_VECTOR.colour,
-            fontweight="bold",
-            ha="center",
+            11 * s / 0.75 + 1,
+            offset=(-10, -4) if name in "OR" else (6, -4),
+            colour=style.LATTICE_VECTOR.colour,
+            bold=True,
             va="top",
         )
     # The arrows O->P and O->R are the lattice vectors; their tips carry the corner letters and
     # their coordinates go in the title (labels beside the arrows collide with folded copies).
-    _lattice_vector(ax, corners[0], corners[1])
-    _lattice_vector(ax, corners[0], corners[3])
+    scene.arrows.append(Arrow(corners[0], corners[1], style.LATTICE_VECTOR.colour))
+    scene.arrows.append(Arrow(corners[0], corners[3], style.LATTICE_VECTOR.colour))
 
     marker = 11 * s / 0.75
     gap = marker / 2 + 1
@@ -231,83 +242,108 @@ def _plot_parallelogram(canvas: _Canvas, net: NetPicture) -> None:
         target = petri_to_page(arc.target)
         middle = place_at[arc.place]
         colour = style.place_ink(net.kinds[arc.place]).colour
-        canvas.arc([source, middle], colour, gap, gap)
-        canvas.arc([middle, target], colour, gap, gap, dashed=arc.folded)
+        scene.arc([source, middle], colour, gap, gap)
+        scene.arc([middle, target], colour, gap, gap, dashed=arc.folded)
         place_points.append(middle)
         place_colours.append(colour)
         if arc.folded:
             ghosts[arc.target] = net.post[arc.place]
-    canvas.places(net, place_points, place_colours, marker)
+    _places(scene, net, place_points, place_colours, marker)
     ghost_points = [petri_to_page(point) for point in ghosts]
-    canvas.nodes(
+    scene.node_group(
         "folded-copies",
         [f"copy-{net.transitions[t]}" for t in ghosts.values()],
         ghost_points,
-        marker="s",
+        shape="square",
         size=marker,
-        face="white",
+        face="#ffffff",
         edge=style.FOLDED_COPY.colour,
         linewidth=0.8,
-        linestyle="--",
-        zorder=3,
+        dashed=True,
+        layer=3,
     )
     transition_points = [petri_to_page(point) for point in net.coordinates]
-    canvas.nodes(
+    scene.node_group(
         "transitions",
         [f"transition-{name}" for name in net.transitions],
         transition_points,
-        marker="s",
+        shape="square",
         size=marker,
         face=style.TRANSITION.colour,
         edge=style.TRANSITION.colour,
-        zorder=4,
     )
     if show_labels:
-        for (x, y), t in zip(ghost_points, ghosts.values(), strict=True):
-            ax.annotate(
+        for point, t in zip(ghost_points, ghosts.values(), strict=True):
+            scene.label(
                 f"\u2261 {net.transitions[t]}",
-                (x, y),
-                xytext=(0, marker * 0.7),
-                textcoords="offset points",
-                fontsize=max(5.0, 6.5 * s / 0.75),
-                color=style.FAINT_LABEL,
-                ha="center",
+                point,
+                max(5.0, 6.5 * s / 0.75),
+                offset=(0, marker * 0.7),
+                colour=style.FAINT_LABEL,
                 va="bottom",
             )
-        for (x, y), name in zip(transition_points, net.transitions, strict=True):
-            ax.annotate(
+        for point, name in zip(transition_points, net.transitions, strict=True):
+            scene.label(
                 name,
-                (x, y),
-                xytext=(marker * 0.75, 0),
-                textcoords="offset points",
-                fontsize=max(5.0, 7.5 * s / 0.75),
+                point,
+                max(5.0, 7.5 * s / 0.75),
+                offset=(marker * 0.75, 0),
                 ha="left",
-                va="center",
-                color=style.LABEL,
-                zorder=6,
+                colour=style.LABEL,
             )
-    ax.set_title(
+    scene.key("square", style.TRANSITION.colour, style.TRANSITION.meaning, style.TRANSITION.colour)
+    scene.key("line", style.FORWARD.colour, "forward place and its arcs")
+    scene.key("line", style.BACKWARD.colour, "backward place and its arcs")
+    scene.key("dot", style.TOKEN.colour, "token of the initial marking")
+    for drawn in scene.arcs:
+        if drawn.dashed:
+            kind = "forward" if drawn.colour == style.FORWARD.colour else "backward"
+            scene.key("dashed", drawn.colour, f"{kind} arc leaving the parallelogram (dashed)")
+    if ghosts:
+        scene.key(
+            "dashed-square",
+            style.FOLDED_COPY.colour,
+            "folded copy \u2261 of the transition such an arc reaches",
+            "#ffffff",
+        )
+    scene.key("line", style.LATTICE_VECTOR.colour, style.LATTICE_VECTOR.meaning)
+    scene.title = (
         f"{p}: fundamental parallelogram, A = {p.area}, lattice vectors "
         f"P = ({p.alpha}, {-p.beta}), R = ({p.gamma}, {p.delta})\n"
-        "time up; forward arcs (blue) to the upper right, backward arcs (red) to the upper left",
-        fontsize=9.5,
+        "time up; forward arcs (blue) to the upper right, backward arcs (red) to the upper left"
     )
+    scene.title_size = 9.5
 
 
-def _lattice_vector(ax: Any, start: Point, end: Point) -> None:
-    """A thick arrow for a lattice vector from O."""
-    ax.annotate(
-        "",
-        xy=end,
-        xytext=start,
-        arrowprops={
-            "arrowstyle": "-|>,head_width=0.35,head_length=0.7",
-            "color": style.LATTICE_VECTOR.colour,
-            "linewidth": 1.8,
-            "shrinkA": 0,
-            "shrinkB": 0,
-        },
-        zorder=1,
+def _places(
+    scene: Scene,
+    net: NetPicture,
+    points: Sequence[Point],
+    colours: Sequence[str],
+    marker: float,
+) -> None:
+    """The places (white circles edged in their arc colour) and their tokens (dots)."""
+    scene.node_group(
+        "places",
+        [f"place-{name}" for name in net.places],
+        points,
+        shape="circle",
+        size=marker,
+        face="#ffffff",
+        edge=list(colours),
+        linewidth=1.2,
+    )
+    marked = [i for i, k in enumerate(net.tokens) if k]
+    # A token stays at least 2.5 points across (about 4 pixels) on a crowded picture.
+    scene.node_group(
+        "tokens",
+        [f"token-{net.places[i]}" for i in marked],
+        [points[i] for i in marked],
+        shape="circle",
+        size=max(marker * 0.5, 2.5),
+        face=style.TOKEN.colour,
+        edge=style.TOKEN.colour,
+        layer=5,
     )
 
 
@@ -321,11 +357,11 @@ def _rings_extent(net: NetPicture) -> float:
 
 def _rings_size(net: NetPicture) -> Extent:
     r = _rings_extent(net)
-    return (-r, r, -r, r, _scale(2 * r, 2 * r))
+    return (-r, r, -r, r), _scale(2 * r, 2 * r)
 
 
-def _plot_rings(canvas: _Canvas, net: NetPicture, coloured: bool) -> None:
-    ax, s = canvas.ax, canvas.scale
+def _plot_rings(scene: Scene, net: NetPicture, coloured: bool) -> None:
+    s = scene.scale
     p = net.params
     positions, rings = ring_positions(net)
     show_labels = len(net.transitions) <= LABEL_LIMIT
@@ -334,6 +370,7 @@ def _plot_rings(canvas: _Canvas, net: NetPicture, coloured: bool) -> None:
     place_points: list[Point] = []
     place_colours: list[str] = []
     points = ring_place_points(net, positions, rings)
+    wraps = False
     for place, kind in enumerate(net.kinds):
         a, b = net.pre[place], net.post[place]
         source, target = positions[a], positions[b]
@@ -342,79 +379,76 @@ def _plot_rings(canvas: _Canvas, net: NetPicture, coloured: bool) -> None:
             colour = style.process_ink(rings[a]).colour if coloured else style.FORWARD.colour
         else:
             colour = style.RELEASE.colour if coloured else style.BACKWARD.colour
+        # A backward arc from the outermost ring back to an inner one closes the cycle of
+        # rings; it is dashed so that it reads apart from the arcs to the next ring.
         wrap = kind == "backward" and rings[b] < rings[a]
-        canvas.arc([source, middle], colour, gap, gap, dashed=wrap)
-        canvas.arc([middle, target], colour, gap, gap, dashed=wrap)
+        wraps = wraps or wrap
+        scene.arc([source, middle], colour, gap, gap, dashed=wrap)
+        scene.arc([middle, target], colour, gap, gap, dashed=wrap)
         place_points.append(middle)
         place_colours.append(colour)
-    canvas.places(net, place_points, place_colours, marker)
+    _places(scene, net, place_points, place_colours, marker)
     colours = [
         style.process_ink(ring).colour if coloured else style.TRANSITION.colour for ring in rings
     ]
-    canvas.nodes(
+    scene.node_group(
         "transitions",
         [f"transition-{name}" for name in net.transitions],
         positions,
-        marker="s",
+        shape="square",
         size=marker,
         face=colours,
         edge=colours,
-        zorder=4,
     )
     if show_labels:
         for (x, y), name in zip(positions, net.transitions, strict=True):
             norm = math.hypot(x, y) or 1.0
-            ax.annotate(
+            scene.label(
                 name,
                 (x, y),
-                xytext=(x / norm * marker * 1.1, y / norm * marker),
-                textcoords="offset points",
-                fontsize=max(5.0, 7.5 * s / 0.75),
+                max(5.0, 7.5 * s / 0.75),
+                offset=(x / norm * marker * 1.1, y / norm * marker),
                 ha="left" if x >= -1e-9 else "right",
-                va="center",
-                zorder=6,
+                colour=style.LABEL,
             )
+    count = max(rings) + 1
     if coloured:
-        from matplotlib.lines import Line2D
-
-        count = max(rings) + 1
         length = p.area // count
-        handles = [
-            Line2D(
-                [0],
-                [0],
-                color=style.process_ink(i).colour,
-                marker="s",
-                linewidth=2,
-                label=f"process {i} ({length} steps)",
+        for i in range(count):
+            ink = style.process_ink(i)
+            # A line with a square: the process's arcs and its transitions.
+            scene.key("line", ink.colour, f"process {i} ({length} steps)", ink.colour)
+        scene.key("line", style.RELEASE.colour, "release messages (backward places)")
+        if wraps:
+            scene.key(
+                "dashed",
+                style.RELEASE.colour,
+                f"release from process {count - 1} back to process 0",
             )
-            for i in range(count)
-        ]
-        handles.append(
-            Line2D(
-                [0],
-                [0],
-                color=style.RELEASE.colour,
-                linewidth=2,
-                label="release messages (backward places)",
-            )
-        )
-        if count > 1:
-            handles.append(
-                Line2D(
-                    [0],
-                    [0],
-                    color=style.RELEASE.colour,
-                    linewidth=2,
-                    linestyle="--",
-                    label=f"release from process {count - 1} to process 0",
-                )
-            )
-        ax.legend(handles=handles, loc="upper left", fontsize=8, frameon=False)
         title = f"{p}: {count} processes of {length} steps"
     else:
+        scene.key(
+            "square",
+            style.TRANSITION.colour,
+            "transition (one ring per forward cycle)",
+            style.TRANSITION.colour,
+        )
+        scene.key("line", style.FORWARD.colour, "forward place and its arcs (along a ring)")
+        scene.key(
+            "line",
+            style.BACKWARD.colour,
+            "backward place and its arcs (across, or out to the next ring)",
+        )
+        if wraps:
+            scene.key(
+                "dashed",
+                style.BACKWARD.colour,
+                f"backward arcs from the outer ring {count - 1} back to the inner rings",
+            )
         title = f"{p}: the net, A = {p.area} transitions, {len(net.places)} places"
-    ax.set_title(title + " (forward arcs counter-clockwise)", fontsize=_title_size(canvas, 10))
+    scene.key("dot", style.TOKEN.colour, "token of the initial marking")
+    scene.title = title + " (forward arcs counter-clockwise)"
+    scene.title_size = scene.title_font(10)
 
 
 # --- states view ------------------------------------------------------------------------
@@ -451,315 +485,129 @@ def state_graph(p: ParameterSet, limit: int = DRAW_STATE_LIMIT) -> tuple[NetPict
     return net, StateGraph(states, arcs)
 
 
-def _draw_states(p: ParameterSet, fmt: str) -> bytes:
+def marking_lines(net: NetPicture, graph: StateGraph) -> list[str]:
+    """One line per marking: its name and the places that carry a token (``M3: f_0_0 b_1_2``)."""
+    width = len(f"M{len(graph.states) - 1}")
+    return [
+        f"{f'M{i}':<{width}}  " + " ".join(net.places[j] for j in state)
+        for i, state in enumerate(graph.states)
+    ]
+
+
+#: Page units between two lanes of the arcs back to earlier layers.
+LANE_GAP = 0.45
+
+
+def return_routes(
+    positions: Sequence[Point], layers: Sequence[int], arcs: Sequence[tuple[int, int, int]]
+) -> dict[int, list[Point]]:
+    """Paths of the arcs back to earlier layers, by arc index.
+
+    Each runs in a lane of its own outside the layered graph, on the side of its target (left
+    half to the left, right half to the right): out sideways from its source, down its lane,
+    and into its target from that side at a height of its own, so that arcs to one marking
+    (the reversible system returns to M0 often, docs/theory/cycles-and-tokens.md) arrive
+    side by side instead of piling up at one point.
+    """
+    if not positions:
+        return {}
+    left_edge = min(x for x, _ in positions)
+    right_edge = max(x for x, _ in positions)
+    back = [i for i, (a, b, _) in enumerate(arcs) if layers[b] <= layers[a]]
+    # Longer returns take the outer lanes, so that lanes do not cross one another.
+    back.sort(key=lambda i: positions[arcs[i][0]][1] - positions[arcs[i][1]][1])
+    lanes = {"left": 0, "right": 0}
+    arrivals: dict[tuple[int, str], int] = {}
+    routes: dict[int, list[Point]] = {}
+    for i in back:
+        a, b, _ = arcs[i]
+        (xa, ya), (xb, yb) = positions[a], positions[b]
+        # The side of the target, so that the arc enters it from outside the graph (the side of
+        # the source for a target in the middle, the emptier side when both are).
+        toward = xb if abs(xb) > 1e-9 else xa
+        if abs(toward) <= 1e-9:
+            toward = -1.0 if lanes["left"] <= lanes["right"] else 1.0
+        side = "left" if toward < 0 else "right"
+        lanes[side] += 1
+        sign = -1.0 if side == "left" else 1.0
+        edge = left_edge if side == "left" else right_edge
+        lane_x = edge + sign * (0.6 + LANE_GAP * lanes[side])
+        k = arrivals.get((b, side), 0)
+        arrivals[(b, side)] = k + 1
+        # Arrivals at one target fan out over +-0.35 page units of its height.
+        entry_y = yb + 0.35 * (((k + 1) // 2) * (1 if k % 2 else -1)) / max(1, (k + 2) // 2)
+        routes[i] = [
+            (xa, ya),
+            (lane_x, ya + 0.25),
+            (lane_x, entry_y + 0.25),
+            (xb + sign * 0.55, entry_y),
+            (xb, yb),
+        ]
+    return routes
+
+
+def _states_scene(p: ParameterSet) -> Scene:
     net, graph = state_graph(p)
     positions = state_positions(len(graph.states), graph.arcs)
-    xs = [x for x, _ in positions]
+    layers = state_layers(len(graph.states), graph.arcs)
+    routes = return_routes(positions, layers, graph.arcs)
+    xs = [x for x, _ in positions] + [x for path in routes.values() for x, _ in path]
     ys = [y for _, y in positions]
     x0, x1, y0, y1 = min(xs) - 1.5, max(xs) + 1.5, min(ys) - 1.5, max(ys) + 1.5
-    extent = (x0, x1, y0, y1, _scale(x1 - x0, y1 - y0, unit=0.7))
-    return _render(lambda canvas: _plot_states(canvas, net, graph, positions), extent, fmt)
+    scene = Scene((x0, x1, y0, y1), _scale(x1 - x0, y1 - y0, unit=0.7))
+    _plot_states(scene, net, graph, positions, layers, routes)
+    return scene
 
 
 def _plot_states(
-    canvas: _Canvas, net: NetPicture, graph: StateGraph, positions: list[Point]
+    scene: Scene,
+    net: NetPicture,
+    graph: StateGraph,
+    positions: list[Point],
+    layers: list[int],
+    routes: dict[int, list[Point]],
 ) -> None:
-    ax, s = canvas.ax, canvas.scale
+    s = scene.scale
     marker = 15 * s / 0.7
     gap = marker / 2 + 1
     labelled = len(graph.states) <= LABEL_LIMIT
-    layers = state_layers(len(graph.states), graph.arcs)
-    for a, b, t in graph.arcs:
-        upward = layers[b] > layers[a]
+    for index, (a, b, t) in enumerate(graph.arcs):
+        upward = index not in routes
         colour = style.STEP_UP.colour if upward else style.STEP_BACK.colour
-        # Arcs back to earlier layers (the system is reversible, docs/theory/cycles-and-tokens.md)
-        # bow out to
-        # the side so that they do not run over the layers in between.
-        path = [positions[a], positions[b]] if upward else _curve(positions[a], positions[b], 0.3)
-        canvas.arc(path, colour, gap, gap, dashed=not upward, width=0.8)
+        path = [positions[a], positions[b]] if upward else routes[index]
+        scene.arc(path, colour, gap, gap, dashed=not upward, width=0.8)
         if labelled and upward and len(graph.arcs) <= 2 * LABEL_LIMIT:
             # A third of the way from the source, not halfway: two arcs that cross between
             # the same two layers cross at their midpoints, so their labels would coincide.
-            mx, my = along(positions[a], positions[b], STATE_LABEL_AT)
-            ax.annotate(
+            scene.label(
                 net.transitions[t],
-                (mx, my),
-                fontsize=max(4.5, 6 * s / 0.7),
-                color=colour,
-                ha="center",
-                va="center",
-                zorder=3,
-                bbox={
-                    "boxstyle": "round,pad=0.1",
-                    "facecolor": "white",
-                    "edgecolor": "none",
-                    "alpha": 0.85,
-                },
+                along(positions[a], positions[b], STATE_LABEL_AT),
+                max(4.5, 6 * s / 0.7),
+                colour=colour,
+                boxed=True,
             )
-    faces = [style.INITIAL_STATE.colour if i == 0 else "white" for i in range(len(positions))]
-    canvas.nodes(
+    faces = [style.INITIAL_STATE.colour if i == 0 else "#ffffff" for i in range(len(positions))]
+    scene.node_group(
         "states",
         [f"state-{i}" for i in range(len(positions))],
         positions,
-        marker="o",
+        shape="circle",
         size=marker,
         face=faces,
         edge=style.STATE.colour,
-        linewidth=1.0,
-        zorder=4,
     )
     if labelled:
-        for i, (x, y) in enumerate(positions):
-            ax.annotate(
-                f"M{i}",
-                (x, y),
-                fontsize=max(4.5, 6.5 * s / 0.7),
-                ha="center",
-                va="center",
-                zorder=5,
-            )
+        for i, point in enumerate(positions):
+            scene.label(f"M{i}", point, max(4.5, 6.5 * s / 0.7))
+        scene.side_heading = "marking: places with a token"
+        scene.side_text = marking_lines(net, graph)
+    scene.key("circle", style.STATE.colour, "reachable marking", "#ffffff")
+    scene.key("circle", style.STATE.colour, style.INITIAL_STATE.meaning, style.INITIAL_STATE.colour)
+    scene.key("line", style.STEP_UP.colour, "occurrence of a transition, one layer further from M0")
+    scene.key("dashed", style.STEP_BACK.colour, "occurrence leading back to an earlier layer")
     p = net.params
-    ax.set_title(
+    scene.title = (
         f"{p}: reachability graph, {len(graph.states)} states, {len(graph.arcs)} arcs "
-        "(M0 at the bottom; arcs back to earlier layers dashed)",
-        fontsize=_title_size(canvas, 9),
+        "(M0 at the bottom)"
     )
-
-
-# --- shared matplotlib helpers --------------------------------------------------------------
-
-Extent = tuple[float, float, float, float, float]  # x0, x1, y0, y1, inches per page unit
-
-
-class _Canvas:
-    """Collects the arcs of a picture and draws each kind of node and arc as one collection.
-
-    One matplotlib artist per node or arc costs milliseconds each; collections keep an area-400
-    net at about two seconds. Node collections get an SVG id (``gid``, e.g. ``transitions``)
-    and every marker its own (``transition-t_0_0``, through ``_links_to_ids``).
-    """
-
-    def __init__(self, ax: Any, scale: float) -> None:
-        self.ax = ax
-        self.scale = scale
-        self._lines: dict[tuple[str, bool, float], list[list[Point]]] = {}
-        self._heads: dict[str, list[list[Point]]] = {}
-
-    def units(self, points: float) -> float:
-        """A length in typographic points as page units."""
-        return points / 72.0 / self.scale
-
-    def arc(
-        self,
-        path: Sequence[Point],
-        colour: str,
-        gap_start: float,
-        gap_end: float,
-        dashed: bool = False,
-        width: float = 1.0,
-    ) -> None:
-        """An arrow along ``path``, leaving ``gap_*`` points free at both ends for the nodes."""
-        trimmed = _trim(path, self.units(gap_start), self.units(gap_end))
-        if len(trimmed) < 2:
-            return
-        head_length, half_width = self.units(6.0), self.units(2.4)
-        tip = trimmed[-1]
-        before = trimmed[-2]
-        dx, dy = tip[0] - before[0], tip[1] - before[1]
-        norm = math.hypot(dx, dy) or 1.0
-        ux, uy = dx / norm, dy / norm
-        base = (tip[0] - ux * head_length, tip[1] - uy * head_length)
-        self._heads.setdefault(colour, []).append(
-            [
-                tip,
-                (base[0] - uy * half_width, base[1] + ux * half_width),
-                (base[0] + uy * half_width, base[1] - ux * half_width),
-            ]
-        )
-        trimmed[-1] = (tip[0] - ux * head_length * 0.6, tip[1] - uy * head_length * 0.6)
-        self._lines.setdefault((colour, dashed, width), []).append(trimmed)
-
-    def nodes(
-        self,
-        gid: str,
-        names: Sequence[str],
-        points: Sequence[Point],
-        *,
-        marker: str,
-        size: float,
-        face: str | Sequence[str],
-        edge: str | Sequence[str],
-        linewidth: float = 1.0,
-        linestyle: str = "-",
-        zorder: int = 4,
-    ) -> None:
-        """One scatter collection of markers, ``size`` points across."""
-        if not points:
-            return
-        art = self.ax.scatter(
-            [x for x, _ in points],
-            [y for _, y in points],
-            s=size**2,
-            marker=marker,
-            facecolors=face,
-            edgecolors=edge,
-            linewidths=linewidth,
-            linestyle=linestyle,
-            zorder=zorder,
-        )
-        art.set_gid(gid)
-        art.set_urls([f"#{name}" for name in names])
-
-    def places(
-        self, net: NetPicture, points: Sequence[Point], colours: Sequence[str], marker: float
-    ) -> None:
-        """The places (white circles edged in their arc colour) and their tokens (dots)."""
-        self.nodes(
-            "places",
-            [f"place-{name}" for name in net.places],
-            points,
-            marker="o",
-            size=marker,
-            face="white",
-            edge=list(colours),
-            linewidth=1.2,
-            zorder=4,
-        )
-        marked = [i for i, k in enumerate(net.tokens) if k]
-        # A token stays at least 2.5 points across (about 4 pixels) on a crowded picture.
-        self.nodes(
-            "tokens",
-            [f"token-{net.places[i]}" for i in marked],
-            [points[i] for i in marked],
-            marker="o",
-            size=max(marker * 0.5, 2.5),
-            face=style.TOKEN.colour,
-            edge=style.TOKEN.colour,
-            zorder=5,
-        )
-
-    def finish(self) -> None:
-        """Hand the collected arcs to matplotlib: one line and one head collection per style."""
-        from matplotlib.collections import LineCollection, PolyCollection
-
-        for (colour, dashed, width), paths in self._lines.items():
-            self.ax.add_collection(
-                LineCollection(
-                    paths,
-                    colors=colour,
-                    linewidths=width,
-                    linestyles="--" if dashed else "-",
-                    zorder=2,
-                )
-            )
-        for colour, heads in self._heads.items():
-            self.ax.add_collection(
-                PolyCollection(
-                    heads,
-                    facecolors=colour,
-                    edgecolors=colour,
-                    linewidths=0.3,
-                    zorder=2,
-                )
-            )
-
-
-def _trim(path: Sequence[Point], start: float, end: float) -> list[Point]:
-    """The part of a polyline that is at least ``start`` from its beginning and ``end`` from
-    its end (measured along it); empty when the polyline is shorter than that."""
-    lengths = [math.hypot(b[0] - a[0], b[1] - a[1]) for a, b in pairwise(path)]
-    total = sum(lengths)
-    if total <= start + end:
-        return []
-
-    def point_at(distance: float) -> tuple[int, Point]:
-        walked = 0.0
-        for i, length in enumerate(lengths):
-            if walked + length >= distance and length > 0:
-                f = (distance - walked) / length
-                a, b = path[i], path[i + 1]
-                return i, (a[0] + (b[0] - a[0]) * f, a[1] + (b[1] - a[1]) * f)
-            walked += length
-        return len(lengths) - 1, path[-1]
-
-    i, first = point_at(start)
-    j, last = point_at(total - end)
-    return [first, *path[i + 1 : j + 1], last]
-
-
-def _curve(start: Point, end: Point, rad: float, samples: int = 24) -> list[Point]:
-    """A quadratic Bezier from start to end bent to the right by ``rad`` of its length."""
-    mx, my = (start[0] + end[0]) / 2, (start[1] + end[1]) / 2
-    dx, dy = end[0] - start[0], end[1] - start[1]
-    control = (mx + dy * rad, my - dx * rad)
-    points = []
-    for k in range(samples + 1):
-        t = k / samples
-        a, b, c = (1 - t) ** 2, 2 * (1 - t) * t, t * t
-        points.append(
-            (a * start[0] + b * control[0] + c * end[0], a * start[1] + b * control[1] + c * end[1])
-        )
-    return points
-
-
-def _render(plot: Callable[[_Canvas], None], extent: Extent, fmt: str) -> bytes:
-    """Draw with matplotlib's Agg backend and return the SVG or PNG file as bytes.
-
-    ``extent`` is the page rectangle and the scale in inches per page unit; the axes fill the
-    figure exactly, so that marker sizes in points and lengths in page units agree.
-    """
-    matplotlib = import_extra("matplotlib", "plots", "drawing a picture")
-    matplotlib.use("Agg")
-    import matplotlib.pyplot as plt
-
-    x0, x1, y0, y1, scale = extent
-    # Very small pictures are widened (at the same scale) so that the title fits.
-    min_width, min_height = 4.5, 3.0
-    if (x1 - x0) * scale < min_width:
-        pad = (min_width / scale - (x1 - x0)) / 2
-        x0, x1 = x0 - pad, x1 + pad
-    if (y1 - y0) * scale < min_height:
-        pad = (min_height / scale - (y1 - y0)) / 2
-        y0, y1 = y0 - pad, y1 + pad
-    width, height = (x1 - x0) * scale, (y1 - y0) * scale
-    with matplotlib.rc_context(
-        {"svg.fonttype": "none", "svg.hashsalt": "zoo", "font.family": "DejaVu Sans"}
-    ):
-        fig = plt.figure(figsize=(width, height))
-        try:
-            ax = fig.add_axes((0.0, 0.0, 1.0, 1.0))
-            ax.set_xlim(x0, x1)
-            ax.set_ylim(y0, y1)
-            ax.set_aspect("equal", adjustable="box")
-            ax.axis("off")
-            canvas = _Canvas(ax, scale)
-            plot(canvas)
-            canvas.finish()
-            buffer = io.BytesIO()
-            metadata = {"Date": None} if fmt == "svg" else {"Software": "zoo"}
-            fig.savefig(
-                buffer,
-                format=fmt,
-                dpi=PNG_DPI,
-                metadata=metadata,
-                bbox_inches="tight",
-                pad_inches=0.15,
-            )
-        finally:
-            plt.close(fig)
-    data = buffer.getvalue()
-    if fmt == "svg":
-        data = _links_to_ids(data)
-    return data
-
-
-_LINK = re.compile(rb'<a xlink:href="#([^"]+)" target="_blank">')
-
-
-def _links_to_ids(svg: bytes) -> bytes:
-    """Turn matplotlib's per-point links into groups with ids: ``<g id="transition-t_0_0">``.
-
-    matplotlib can name a whole collection (gid) but a single point only through a link;
-    the only links in our pictures are those, so every ``</a>`` closes one of them.
-    """
-    return _LINK.sub(rb'<g id="\1">', svg).replace(b"</a>", b"</g>")
+    scene.title_size = scene.title_font(9)

@@ -1,0 +1,177 @@
+"""Tables for papers: a ``find`` answer as Markdown or as a LaTeX ``table``.
+
+Values stay exact: whole numbers as all their digits (no separators, no rounding), fractions as
+numerator/denominator, truth values as yes/no, lists of values over a class's members joined by
+commas. The completeness note goes with the table, so a reader of the paper knows up to which
+area the answer is complete: in Markdown as a paragraph under the table, in LaTeX as the
+``\\caption`` of the ``table`` float. The LaTeX needs no package beyond a stock LaTeX kernel
+(rules are ``\\hline``, not booktabs).
+"""
+
+from __future__ import annotations
+
+import re
+from collections.abc import Sequence
+from dataclasses import dataclass
+from fractions import Fraction
+
+#: The formats ``render`` knows.
+TABLE_FORMATS = ("markdown", "latex")
+
+#: A fraction written by the catalog as text (``"3/4"``, ``"-1/2"``).
+_FRACTION_TEXT = re.compile(r"^(-?\d+)/(\d+)$")
+
+
+@dataclass(frozen=True)
+class PaperTable:
+    """Headings, rows of typed values (int, Fraction, bool, str, list, None) and the note."""
+
+    headings: tuple[str, ...]
+    rows: tuple[tuple[object, ...], ...]
+    note: str
+
+
+def exact(value: object) -> object:
+    """A fraction the catalog wrote as text (``"3/4"``) as a Fraction; anything else unchanged."""
+    if isinstance(value, str):
+        match = _FRACTION_TEXT.match(value)
+        if match:
+            return Fraction(int(match.group(1)), int(match.group(2)))
+    return value
+
+
+def cell_text(value: object) -> str:
+    """A value as exact plain text (Markdown cells; LaTeX escapes it afterwards)."""
+    value = exact(value)
+    if value is None:
+        return ""
+    if isinstance(value, bool):
+        return "yes" if value else "no"
+    if isinstance(value, int):
+        return str(value)
+    if isinstance(value, Fraction):
+        return str(value.numerator) if value.denominator == 1 else f"{value}"
+    if isinstance(value, list | tuple):
+        return ", ".join(cell_text(v) for v in value)
+    return str(value)
+
+
+def _numeric(value: object) -> bool:
+    """Whether a column of such values is right-aligned (numbers line up by their last digit)."""
+    value = exact(value)
+    if isinstance(value, bool):
+        return False
+    if isinstance(value, int | Fraction):
+        return True
+    return isinstance(value, str) and bool(re.fullmatch(r"-?\d+", value))
+
+
+def _alignments(table: PaperTable) -> list[bool]:
+    """Per column: right-aligned when every non-empty value is a number."""
+    right = []
+    for column in range(len(table.headings)):
+        values = [row[column] for row in table.rows if cell_text(row[column]) != ""]
+        right.append(bool(values) and all(_numeric(v) for v in values))
+    return right
+
+
+# --- Markdown ------------------------------------------------------------------------------
+
+
+def _markdown_cell(text: str) -> str:
+    # A pipe would end the cell and a newline the row (CommonMark / GFM tables).
+    return text.replace("\\", "\\\\").replace("|", "\\|").replace("\n", " ")
+
+
+def markdown(table: PaperTable) -> str:
+    """A GitHub-flavoured Markdown pipe table, then the note as a paragraph under it."""
+    right = _alignments(table)
+    lines = [
+        "| " + " | ".join(_markdown_cell(h) for h in table.headings) + " |",
+        "| " + " | ".join("---:" if r else "---" for r in right) + " |",
+    ]
+    for row in table.rows:
+        lines.append("| " + " | ".join(_markdown_cell(cell_text(v)) for v in row) + " |")
+    return "\n".join(lines) + "\n\n" + _markdown_cell(table.note) + "\n"
+
+
+# --- LaTeX -----------------------------------------------------------------------------------
+
+#: The ten characters special to LaTeX and their text-mode spelling (LaTeX kernel commands only).
+_LATEX_SPECIALS = {
+    "\\": r"\textbackslash{}",
+    "{": r"\{",
+    "}": r"\}",
+    "_": r"\_",
+    "%": r"\%",
+    "&": r"\&",
+    "#": r"\#",
+    "$": r"\$",
+    "^": r"\textasciicircum{}",
+    "~": r"\textasciitilde{}",
+}
+_LATEX_SPECIAL = re.compile(r"[\\{}_%&#$^~]")
+
+
+def latex_escape(text: str) -> str:
+    """Plain text safe in LaTeX text mode (the ten special characters spelled out)."""
+    return _LATEX_SPECIAL.sub(lambda m: _LATEX_SPECIALS[m.group(0)], text)
+
+
+def _latex_cell(value: object) -> str:
+    value = exact(value)
+    if isinstance(value, list | tuple):
+        return ", ".join(_latex_cell(v) for v in value)
+    if isinstance(value, Fraction | int) and not isinstance(value, bool) and value < 0:
+        return f"${cell_text(value)}$"  # a minus sign, not a hyphen
+    return latex_escape(cell_text(value))
+
+
+def latex(table: PaperTable, label: str | None = None) -> str:
+    """A LaTeX ``table`` float with a ``tabular`` and the note as its caption.
+
+    Ready for ``\\input`` in a document of any standard class; ``label`` adds a ``\\label``.
+    """
+    spec = "".join("r" if r else "l" for r in _alignments(table))
+    lines = [
+        "% Generated by zoo find; needs no LaTeX package.",
+        r"\begin{table}[htbp]",
+        r"\centering",
+        r"\begin{tabular}{" + spec + "}",
+        r"\hline",
+        " & ".join(latex_escape(h) for h in table.headings) + r" \\",
+        r"\hline",
+    ]
+    for row in table.rows:
+        lines.append(" & ".join(_latex_cell(v) for v in row) + r" \\")
+    lines += [
+        r"\hline",
+        r"\end{tabular}",
+        r"\caption{" + latex_escape(table.note) + "}",
+    ]
+    if label:
+        lines.append(r"\label{" + re.sub(r"[^A-Za-z0-9:._-]", "-", label) + "}")
+    lines.append(r"\end{table}")
+    return "\n".join(lines) + "\n"
+
+
+def render(fmt: str, headings: Sequence[str], rows: Sequence[Sequence[object]], note: str) -> str:
+    """The table in format ``markdown`` or ``latex``."""
+    table = PaperTable(tuple(headings), tuple(tuple(r) for r in rows), note)
+    if fmt == "markdown":
+        return markdown(table)
+    if fmt == "latex":
+        return latex(table)
+    raise ValueError(f"unknown table format {fmt!r}; choose one of {', '.join(TABLE_FORMATS)}")
+
+
+__all__ = [
+    "PaperTable",
+    "TABLE_FORMATS",
+    "cell_text",
+    "exact",
+    "latex",
+    "latex_escape",
+    "markdown",
+    "render",
+]
