@@ -56,6 +56,10 @@ class ClassificationDisagreement(CatalogError):
         super().__init__(message)
         self.report = report
 
+    def __reduce__(self) -> tuple[type, tuple[str, tuple[str, ...]]]:
+        # Pickled whole, so that a cluster worker's disagreement reaches the writer intact.
+        return (type(self), (str(self), self.report))
+
 
 @dataclass(frozen=True)
 class ReadingSummary:
