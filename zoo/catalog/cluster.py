@@ -76,16 +76,16 @@ class ClusterClassifier:
         local = _LOCAL.fullmatch(self.address)
         try:
             if local is not None:
-                self._cluster = LocalCluster(
+                self._cluster = LocalCluster(  # type: ignore[no-untyped-call]
                     n_workers=int(local.group(1)),
                     threads_per_worker=1,  # nauty holds the GIL: one area per process
                     processes=True,
                     host="127.0.0.1",
                     dashboard_address=None,
                 )
-                self.client = Client(self._cluster)
+                self.client = Client(self._cluster)  # type: ignore[no-untyped-call]
             else:
-                self.client = Client(self.address, timeout="20s")
+                self.client = Client(self.address, timeout="20s")  # type: ignore[no-untyped-call]
         except OSError as exc:
             self.close()
             raise CatalogError(
