@@ -33,7 +33,7 @@ from zoo.catalog.enumeration import parameter_set_count
 from zoo.catalog.seeds import Seed, load_seed_directory
 from zoo.catalog.service import MAX_BUILD_AREA, AreaStats, Catalog, stored_class_id
 from zoo.errors import CatalogError, ParameterError
-from zoo.storage import database
+from zoo.storage import bulk, database
 from zoo.storage.models import Base, sortable_key
 from zoo.version import __version__
 
@@ -452,24 +452,8 @@ def _cluster_classified(areas: Sequence[int], address: str) -> Iterator[AreaClas
 
 
 def _bulk_insert(connection: Connection, table: Table, rows: list[dict[str, object]]) -> None:
-    """Insert many rows of the same keys; on SQLite straight through the driver's executemany.
-
-    Profiling the build showed SQLAlchemy's per-row parameter processing as most of the
-    writer's time on SQLite; the values here are plain ints, strings, bools and datetimes that
-    sqlite3 binds directly. Other databases take the ordinary SQLAlchemy path.
-    """
-    if not rows:
-        return
-    if connection.dialect.name != "sqlite":
-        connection.execute(table.insert(), rows)
-        return
-    keys = list(rows[0])
-    columns = ", ".join(f'"{key}"' for key in keys)
-    marks = ", ".join("?" for _ in keys)
-    connection.exec_driver_sql(
-        f'INSERT INTO "{table.name}" ({columns}) VALUES ({marks})',
-        [tuple(row[key] for key in keys) for row in rows],
-    )
+    """Insert many rows of the same keys: batched executemany or COPY (zoo.storage.bulk)."""
+    bulk.insert_rows(connection, table, rows)
 
 
 def _put_info(connection: Connection, key: str, value: str) -> None:
