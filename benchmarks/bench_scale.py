@@ -128,6 +128,24 @@ def old_against_fast(max_area: int) -> tuple[float, float]:
     return old, time.process_time() - started
 
 
+def sample_costs(areas: list[int]) -> list[tuple[int, float, int, int]]:
+    """CPU seconds of classifying single areas (area, seconds, parameter sets, classes)."""
+    from zoo.catalog.classify import classify_area
+
+    costs = []
+    for area in areas:
+        started = time.process_time()
+        result = classify_area(area)
+        seconds = time.process_time() - started
+        costs.append((area, seconds, result.parameter_set_count, len(result.classes)))
+        print(
+            f"  area {area}: {seconds:.2f} s CPU, {result.parameter_set_count:,} parameter sets, "
+            f"{len(result.classes):,} classes, {result.canonical_forms:,} nauty forms",
+            flush=True,
+        )
+    return costs
+
+
 def fit(per_area: list[tuple[int, float, int, int]], low: int) -> tuple[float, float]:
     """Least squares of log(seconds) = log(c) + k log(A) over areas >= low."""
     points = [(math.log(a), math.log(s)) for a, s, _n, _c in per_area if a >= low and s > 0]
@@ -163,53 +181,69 @@ def main() -> None:
     parser.add_argument("--old-area", type=int, default=30, help="bound of the old-path check")
     parser.add_argument("--machines", type=int, nargs="*", default=[1, 4, 16])
     parser.add_argument("--cores", type=int, default=2, help="worker processes per machine")
+    parser.add_argument("--sample-areas", type=int, nargs="*", default=[60, 80, 100, 120, 150, 200])
+    parser.add_argument(
+        "--fit-only", action="store_true", help="skip the builds: old path, samples, prediction"
+    )
     args = parser.parse_args()
     from zoo.catalog.enumeration import parameter_set_count
 
     print(f"load average at start: {os.getloadavg()[0]:.2f} (2-core machine, shared)")
-    single60 = build(60, jobs=1)
-    nauty60, forms60 = nauty_alone(60)
-    print(_line("build to 60, 1 process", single60))
-    print(
-        f"  nauty alone for the same {forms60:,} forms: {nauty60:.2f} s CPU; the build's CPU "
-        f"{single60['writer_cpu']:.2f} s; build CPU / nauty CPU = "
-        f"{single60['writer_cpu'] / nauty60:.2f} (target <= 2; wall / nauty "
-        f"{single60['wall'] / nauty60:.2f} at this load)"
-    )
-    biggest = build(100, jobs=1)
-    print(_line("build to 100, 1 process", biggest))
-    jobs2 = build(100, jobs=2)
-    print(_line("build to 100, --jobs 2", jobs2))
-    cluster2 = build(100, cluster="local:2")
-    print(
-        _line("build to 100, --cluster local:2", cluster2)
-        + f" (with cluster start {cluster2['outer_wall']:.1f} s)"
-    )
-    for bound, wanted in ((200, args.area_200), (300, args.area_300)):
-        if wanted:
-            biggest = build(bound, jobs=2)
-            print(_line(f"build to {bound}, --jobs 2", biggest))
+    biggest: dict[str, Any] | None = None
+    if not args.fit_only:
+        single60 = build(60, jobs=1)
+        nauty60, forms60 = nauty_alone(60)
+        print(_line("build to 60, 1 process", single60))
+        print(
+            f"  nauty alone for the same {forms60:,} forms: {nauty60:.2f} s CPU; the build's CPU "
+            f"{single60['writer_cpu']:.2f} s; build CPU / nauty CPU = "
+            f"{single60['writer_cpu'] / nauty60:.2f} (target <= 2; wall / nauty "
+            f"{single60['wall'] / nauty60:.2f} at this load)"
+        )
+        biggest = build(100, jobs=1)
+        print(_line("build to 100, 1 process", biggest))
+        jobs2 = build(100, jobs=2)
+        print(_line("build to 100, --jobs 2", jobs2))
+        cluster2 = build(100, cluster="local:2")
+        print(
+            _line("build to 100, --cluster local:2", cluster2)
+            + f" (with cluster start {cluster2['outer_wall']:.1f} s)"
+        )
+        for bound, wanted in ((200, args.area_200), (300, args.area_300)):
+            if wanted:
+                biggest = build(bound, jobs=2)
+                print(_line(f"build to {bound}, --jobs 2", biggest))
     old, fast = old_against_fast(args.old_area)
     print(
         f"classification to {args.old_area}, 1 process: explicit-net path {old:.2f} s CPU, "
         f"fast path {fast:.2f} s CPU ({old / fast:.1f}x)"
     )
-    per_area = biggest["per_area"]
-    top = per_area[-1][0]
-    c, k = fit(per_area, top // 2)
-    measured = sum(s for _a, s, _n, _c in per_area)
-    print(
-        f"cost per area (classify + write, areas {top // 2}..{top} of the largest build): "
-        f"{c:.3g} * A^{k:.2f} s; measured total to {top}: {measured:.1f} s CPU"
-    )
+    print(f"classification CPU of single areas (load {os.getloadavg()[0]:.2f}):")
+    samples = sample_costs(args.sample_areas)
+    c, k = fit(samples, 0)
+    print(f"cost per area, fitted on those: {c:.3g} * A^{k:.2f} s CPU")
+    if biggest is not None:
+        per_area = biggest["per_area"]
+        top = per_area[-1][0]
+        measured = sum(s for _a, s, _n, _c in per_area)
+        predicted = sum(c * a**k for a in range(1, top + 1))
+        print(
+            f"  check: the build to {top} stored {measured:.1f} s of per-area time "
+            f"(classify + write, wall), the fit predicts {predicted:.1f} s CPU"
+        )
     total = sum(c * a**k for a in range(1, 1001))
     largest = c * 1000**k
     sets = sum(parameter_set_count(a) for a in range(1, 1001))
-    sets_top = sum(n for _a, _s, n, _c in per_area)
-    size = biggest["size_mb"] * sets / sets_top
+    size = (
+        ""
+        if biggest is None
+        else (
+            f", catalog about {biggest['size_mb'] * sets / biggest['parameter_sets'] / 1000:.1f} GB"
+        )
+    )  # bytes grow with the parameter sets stored
     print(
         f"prediction to 1,000: {total / 3600:.2f} CPU hours over 1,000 tasks (largest "
-        f"{largest:.0f} s), {sets:,} parameter sets, catalog about {size / 1000:.1f} GB"
+        f"{largest:.0f} s), {sets:,} parameter sets{size}"
     )
     for machines in args.machines:
         workers = machines * args.cores
