@@ -23,6 +23,7 @@ from typing import Protocol
 
 from zoo.catalog import service as catalog_service
 from zoo.catalog.classify import AreaClassification, classify_area
+from zoo.catalog.cluster import ClusterClassifier, check_cluster_address
 from zoo.catalog.enumeration import parameter_set_count
 from zoo.catalog.seeds import Seed, load_seed_directory
 from zoo.catalog.service import MAX_BUILD_AREA, AreaStats, Catalog
@@ -83,6 +84,7 @@ def build_catalog(
     progress: BuildProgress | None = None,
     *,
     seeds: Sequence[Seed] | None = None,
+    cluster: str | None = None,
 ) -> BuildReport:
     """Store every area 1..max_area that is not stored yet; one transaction per area.
 
@@ -90,11 +92,14 @@ def build_catalog(
     increasing order. Areas already complete are never rewritten. ``seeds`` defaults to the
     shipped seeds_data/; each is attached to its class when its area is stored. Raises
     ``CatalogError`` (nothing stored for the failing area) when the classification and
-    nauty disagree.
+    nauty disagree. ``cluster`` (a Dask scheduler address or ``local:N``) classifies on a
+    Dask cluster instead of ``jobs`` local processes (``zoo.catalog.cluster``).
     """
     started = time.perf_counter()
     try:
         check_build_bound(max_area)
+        if cluster is not None:
+            cluster = check_cluster_address(cluster)
     except ParameterError:
         catalog.discard_if_unused()  # a rejected build leaves no empty catalog file behind
         raise
@@ -112,7 +117,8 @@ def build_catalog(
     seeds_by_area: dict[int, list[Seed]] = {}
     for seed in seed_list:
         seeds_by_area.setdefault(seed.params.area, []).append(seed)
-    for result in _iter_classified(todo, jobs):
+    classified = _cluster_classified(todo, cluster) if cluster else _iter_classified(todo, jobs)
+    for result in classified:
         write_started = time.perf_counter()
         wrote = write_area(catalog, result, seeds_by_area.get(result.area, []))
         write_seconds = time.perf_counter() - write_started
@@ -316,3 +322,11 @@ def _iter_classified(areas: Sequence[int], jobs: int) -> Iterator[AreaClassifica
     finally:
         pool.terminate()
         pool.join()
+
+
+def _cluster_classified(areas: Sequence[int], address: str) -> Iterator[AreaClassification]:
+    """Classify areas in order on a Dask cluster (``zoo.catalog.cluster``); this process writes."""
+    if not areas:
+        return
+    with ClusterClassifier(address) as cluster:
+        yield from cluster.classify(areas)

@@ -43,6 +43,7 @@ __all__ = [
     "FrameSummary",
     "ReadingSummary",
     "classify_area",
+    "explicit_functions",
 ]
 
 Members = tuple[ParameterSet, ...]
@@ -54,6 +55,10 @@ class ClassificationDisagreement(CatalogError):
     def __init__(self, message: str, report: tuple[str, ...]) -> None:
         super().__init__(message)
         self.report = report
+
+    def __reduce__(self) -> tuple[type, tuple[str, tuple[str, ...]]]:
+        # Pickled whole, so that a cluster worker's disagreement reaches the writer intact.
+        return (type(self), (str(self), self.report))
 
 
 @dataclass(frozen=True)
@@ -176,11 +181,29 @@ FormFunction = Callable[[ParameterSet], CanonicalLike]
 
 
 def _canonical_functions() -> tuple[FormFunction, FormFunction]:
-    """zoo.core.canonical's system_form and net_form, sharing the explicit net of the last call.
+    """The fast forms of zoo.core.canonical (``cycloid_form``), computed from the algebra.
 
-    A frame's label is the label of its first class, so its net form follows that class's
-    system form directly (see classify_area) and the net is built once for both. Imported
-    late so that enumeration alone stays light.
+    They give the same fingerprints and group orders as ``canonical.system_form`` and
+    ``net_form`` on the explicit net (``explicit_functions``), which stay as the check
+    (tests/catalog/test_classify.py). Imported late so that enumeration alone stays light.
+    """
+    from zoo.core.canonical import cycloid_form
+
+    def system_form(p: ParameterSet) -> CanonicalLike:
+        return cycloid_form(p, marked=True)
+
+    def net_form(p: ParameterSet) -> CanonicalLike:
+        return cycloid_form(p, marked=False)
+
+    return system_form, net_form
+
+
+def explicit_functions() -> tuple[FormFunction, FormFunction]:
+    """zoo.core.canonical's system_form and net_form on explicit nets, sharing the last net.
+
+    The reference path: a frame's label is the label of its first class, so its net form
+    follows that class's system form directly (see classify_area) and the net is built once
+    for both.
     """
     from zoo.core.canonical import canonical_form
     from zoo.core.net import CycloidNet, build_net
@@ -262,6 +285,21 @@ def _group(items: Iterable[tuple[object, ParameterSet]]) -> list[Members]:
     return sorted((tuple(sorted(g)) for g in groups.values()), key=lambda g: g[0])
 
 
+def _reading_groups(parameter_sets: list[ParameterSet]) -> list[Members]:
+    """The parameter sets grouped by reading key, one lattice key per chain of steps.
+
+    C(alpha, beta, gamma + k*alpha, delta - k*beta) differ by k*(alpha, -beta), a lattice
+    vector, so they have the same lattice and the same (alpha, beta): the same reading
+    (docs/theory/normal-forms.md). The chains (alpha, beta, gamma mod alpha) are therefore
+    computed first and the reading key once per chain, not once per parameter set; chains with
+    equal reading keys are still merged.
+    """
+    chains: dict[tuple[int, int, int], list[ParameterSet]] = {}
+    for p in parameter_sets:
+        chains.setdefault((p.alpha, p.beta, p.gamma % p.alpha), []).append(p)
+    return _group((algebra.reading_key(chain[0]), p) for chain in chains.values() for p in chain)
+
+
 def _is_swap_pair(readings: list[Members]) -> bool:
     """One reading, or two readings that are each other's swap (an explicit isomorphism)."""
     if len(readings) == 1:
@@ -296,7 +334,7 @@ def classify_area(
     parameter_sets = [ParameterSet(*t) for t in iter_parameter_tuples(area)]
 
     # Algebra: readings by reading key, classes by class key, frames by frame key.
-    reading_groups = _group((algebra.reading_key(p), p) for p in parameter_sets)
+    reading_groups = _reading_groups(parameter_sets)
     readings_of_class: dict[object, list[Members]] = {}
     for members in reading_groups:
         readings_of_class.setdefault(algebra.class_key(members[0]), []).append(members)

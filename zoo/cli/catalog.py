@@ -207,13 +207,21 @@ def build(
     ] = 100,
     db: CatalogOption = None,
     jobs: JobsOption = None,
+    cluster: Annotated[
+        str | None,
+        typer.Option(
+            "--cluster",
+            help="Classify on a Dask cluster: a scheduler address (tcp://HOST:8786) or local:N "
+            "for N local worker processes; this process still writes. Needs zoo[cluster].",
+        ),
+    ] = None,
 ) -> None:
     """Enumerate, classify and store every cycloid up to an area; resumes where it stopped.
 
     Each area is stored in one transaction, so an interrupted build keeps every area it
     finished.
 
-    Example: zoo build --max-area 60 --jobs 2
+    Example: zoo build --max-area 60 --jobs 2   (or --cluster local:2)
     """
     from zoo.catalog.build import build_catalog, default_jobs
     from zoo.catalog.service import Catalog
@@ -224,7 +232,9 @@ def build(
         raise fail(exc) from None
     try:
         report = _run_build(
-            lambda bar: build_catalog(catalog, max_area, jobs=jobs or default_jobs(), progress=bar)
+            lambda bar: build_catalog(
+                catalog, max_area, jobs=jobs or default_jobs(), progress=bar, cluster=cluster
+            )
         )
     finally:
         catalog.close()

@@ -20,14 +20,14 @@ from fractions import Fraction
 from functools import partial
 from typing import Any
 
-from sqlalchemy import Engine, Table, and_, delete, func, or_, select, update
+from sqlalchemy import Engine, and_, delete, func, or_, select, update
 from sqlalchemy.engine import Connection
 from sqlalchemy.exc import IntegrityError, OperationalError
 
 from zoo.core import registry
 from zoo.core.entries import AreaStats, ClassEntry, FrameEntry, SeedEntry, frozen_values
 from zoo.core.params import ParameterSet
-from zoo.storage import convert, database
+from zoo.storage import bulk, convert, database
 from zoo.storage.models import Base, loaded_values
 
 __all__ = ["CatalogReader", "CatalogWriter", "Repository", "StoreConflict"]
@@ -401,7 +401,7 @@ class CatalogWriter(CatalogReader):
             (_READINGS, rows.readings),
             (_PARAMETER_SETS, rows.parameter_sets),
         ):
-            _bulk_insert(self.connection, table, table_rows)
+            bulk.insert_rows(self.connection, table, table_rows)
 
     def mark_area_complete(self, stats: AreaStats) -> None:
         self.connection.execute(
@@ -457,24 +457,3 @@ def _sort_key(field: Any, value: object) -> Any:
     if field.type is FieldType.FRACTION and isinstance(value, str):
         return Fraction(value)
     return value
-
-
-def _bulk_insert(connection: Connection, table: Table, rows: list[dict[str, object]]) -> None:
-    """Insert many rows of the same keys; on SQLite straight through the driver's executemany.
-
-    Profiling the build showed SQLAlchemy's per-row parameter processing as most of the
-    writer's time on SQLite; the values here are plain ints, strings, bools and datetimes that
-    sqlite3 binds directly. Other databases take the ordinary SQLAlchemy path.
-    """
-    if not rows:
-        return
-    if connection.dialect.name != "sqlite":
-        connection.execute(table.insert(), rows)
-        return
-    keys = list(rows[0])
-    columns = ", ".join(f'"{key}"' for key in keys)
-    marks = ", ".join("?" for _ in keys)
-    connection.exec_driver_sql(
-        f'INSERT INTO "{table.name}" ({columns}) VALUES ({marks})',
-        [tuple(row[key] for key in keys) for row in rows],
-    )

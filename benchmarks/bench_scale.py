@@ -1,0 +1,255 @@
+"""Benchmark of the build at scale: fast path against nauty alone, jobs against a Dask cluster.
+
+Prints figures; not a timed test. Run from the repository root::
+
+    .venv/bin/python benchmarks/bench_scale.py                  # to area 100 (about a minute)
+    .venv/bin/python benchmarks/bench_scale.py --area-200 --area-300   # adds the long builds
+
+In one run it measures, each build in a fresh process and a fresh temporary SQLite file:
+
+1. a single-process build to 60: wall, CPU per stage (algebra, nauty with its input, writer),
+   and nauty's own calls alone for the same forms (graphs built beforehand), and the ratio;
+2. the build to 100 (and 200, 300 with the flags): wall, CPU per stage, peak memory, size;
+3. the build to 100 with ``--jobs 2`` and with ``--cluster local:2`` (Dask);
+4. the former explicit-net path against the fast path on a small bound (``--old-area``);
+5. the classification cost per area read from the ``areas`` table of the largest build,
+   fitted as c * A^k, and the build of every area up to 1,000 predicted from it.
+"""
+
+from __future__ import annotations
+
+import argparse
+import math
+import multiprocessing
+import os
+import resource
+import sys
+import tempfile
+import time
+from pathlib import Path
+from typing import Any
+
+sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
+
+
+def _peak_mb(who: int) -> float:
+    return resource.getrusage(who).ru_maxrss / 1024  # kilobytes on Linux
+
+
+def _build_in_child(max_area: int, jobs: int, cluster: str | None, path: str) -> dict[str, Any]:
+    """One build into ``path``; runs in a spawned process, so its peak memory is its own."""
+    from sqlalchemy import text
+
+    from zoo.catalog.build import build_catalog
+    from zoo.catalog.service import Catalog
+
+    cpu = time.process_time()
+    with Catalog.open(path, create=True) as catalog:
+        report = build_catalog(catalog, max_area, jobs=jobs, seeds=[], cluster=cluster)
+        with catalog.engine.connect() as connection:
+            per_area = [
+                tuple(r)
+                for r in connection.execute(
+                    text("SELECT area, seconds, parameter_sets, classes FROM areas ORDER BY area")
+                )
+            ]
+    return {
+        "wall": report.wall_seconds,
+        "stages": dict(report.stage_seconds),
+        "writer_cpu": time.process_time() - cpu,
+        "peak_writer_mb": _peak_mb(resource.RUSAGE_SELF),
+        "peak_child_mb": _peak_mb(resource.RUSAGE_CHILDREN),
+        "size_mb": Path(path).stat().st_size / 1e6,
+        "parameter_sets": report.parameter_sets,
+        "classes": report.classes,
+        "frames": report.frames,
+        "forms": report.canonical_forms,
+        "per_area": per_area,
+    }
+
+
+def build(max_area: int, jobs: int = 1, cluster: str | None = None) -> dict[str, Any]:
+    with tempfile.TemporaryDirectory() as folder:
+        path = str(Path(folder) / "catalog.sqlite3")
+        context = multiprocessing.get_context("spawn")
+        with context.Pool(1) as pool:
+            started = time.perf_counter()
+            result: dict[str, Any] = pool.apply(_build_in_child, (max_area, jobs, cluster, path))
+            result["outer_wall"] = time.perf_counter() - started
+    return result
+
+
+def nauty_alone(max_area: int) -> tuple[float, int]:
+    """Seconds of nauty's two calls (canonical labelling, group) for the forms a build makes."""
+    import pynauty
+
+    from zoo.catalog.classify import classify_area
+    from zoo.core import canonical
+    from zoo.core.net import build_net
+
+    wanted: list[tuple[Any, bool]] = []
+
+    def system(p: Any) -> Any:
+        wanted.append((p, True))
+        return canonical.cycloid_form(p, True)
+
+    def net(p: Any) -> Any:
+        wanted.append((p, False))
+        return canonical.cycloid_form(p, False)
+
+    for area in range(1, max_area + 1):
+        classify_area(area, system_form=system, net_form=net)
+    graphs = []
+    for p, marked in wanted:
+        if canonical._may_have_twins(p):
+            encoding = canonical.encoding_graph(build_net(p), marked)
+            graphs.append(canonical._nauty_graph(encoding))
+        else:
+            pre, post, tokens = canonical._grid_incidence(p, marked)
+            graphs.append(canonical._grid_nauty_graph(pre, post, tokens, p.area)[0])
+    started = time.process_time()
+    for graph in graphs:
+        pynauty.canon_label(graph)
+        pynauty.autgrp(graph)
+    return time.process_time() - started, len(graphs)
+
+
+def old_against_fast(max_area: int) -> tuple[float, float]:
+    from zoo.catalog.classify import classify_area, explicit_functions
+
+    started = time.process_time()
+    for area in range(1, max_area + 1):
+        system, net = explicit_functions()
+        classify_area(area, system_form=system, net_form=net)
+    old = time.process_time() - started
+    started = time.process_time()
+    for area in range(1, max_area + 1):
+        classify_area(area)
+    return old, time.process_time() - started
+
+
+def sample_costs(areas: list[int]) -> list[tuple[int, float, int, int]]:
+    """CPU seconds of classifying single areas (area, seconds, parameter sets, classes)."""
+    from zoo.catalog.classify import classify_area
+
+    costs = []
+    for area in areas:
+        started = time.process_time()
+        result = classify_area(area)
+        seconds = time.process_time() - started
+        costs.append((area, seconds, result.parameter_set_count, len(result.classes)))
+        print(
+            f"  area {area}: {seconds:.2f} s CPU, {result.parameter_set_count:,} parameter sets, "
+            f"{len(result.classes):,} classes, {result.canonical_forms:,} nauty forms",
+            flush=True,
+        )
+    return costs
+
+
+def fit(per_area: list[tuple[int, float, int, int]], low: int) -> tuple[float, float]:
+    """Least squares of log(seconds) = log(c) + k log(A) over areas >= low."""
+    points = [(math.log(a), math.log(s)) for a, s, _n, _c in per_area if a >= low and s > 0]
+    n = len(points)
+    mx = sum(x for x, _ in points) / n
+    my = sum(y for _, y in points) / n
+    k = sum((x - mx) * (y - my) for x, y in points) / sum((x - mx) ** 2 for x, _ in points)
+    return math.exp(my - k * mx), k
+
+
+def _stages(result: dict[str, Any]) -> str:
+    s = result["stages"]
+    return (
+        f"algebra {s.get('classify_algebra', 0):.1f} s, nauty+input "
+        f"{s.get('classify_canonical', 0):.1f} s, writer {s.get('write', 0):.1f} s"
+    )
+
+
+def _line(label: str, r: dict[str, Any]) -> str:
+    return (
+        f"{label}: wall {r['wall']:.1f} s, CPU of the writer process {r['writer_cpu']:.1f} s "
+        f"({_stages(r)}, wall per stage); peak memory writer "
+        f"{r['peak_writer_mb']:.0f} MB, workers {r['peak_child_mb']:.0f} MB; catalog "
+        f"{r['size_mb']:.1f} MB; {r['parameter_sets']:,} parameter sets, {r['classes']:,} "
+        f"classes, {r['frames']:,} frames, {r['forms']:,} nauty forms"
+    )
+
+
+def main() -> None:
+    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    parser.add_argument("--area-200", action="store_true", help="also build to 200 (minutes)")
+    parser.add_argument("--area-300", action="store_true", help="also build to 300 (minutes)")
+    parser.add_argument("--old-area", type=int, default=30, help="bound of the old-path check")
+    parser.add_argument("--machines", type=int, nargs="*", default=[1, 4, 16])
+    parser.add_argument("--cores", type=int, default=2, help="worker processes per machine")
+    parser.add_argument("--sample-areas", type=int, nargs="*", default=[60, 80, 100, 120, 150, 200])
+    parser.add_argument(
+        "--fit-only", action="store_true", help="skip the builds: old path, samples, prediction"
+    )
+    args = parser.parse_args()
+    from zoo.catalog.enumeration import parameter_set_count
+
+    print(f"load average at start: {os.getloadavg()[0]:.2f} (2-core machine, shared)")
+    biggest: dict[str, Any] | None = None
+    if not args.fit_only:
+        single60 = build(60, jobs=1)
+        nauty60, forms60 = nauty_alone(60)
+        print(_line("build to 60, 1 process", single60))
+        print(
+            f"  nauty alone for the same {forms60:,} forms: {nauty60:.2f} s CPU; the build's CPU "
+            f"{single60['writer_cpu']:.2f} s; build CPU / nauty CPU = "
+            f"{single60['writer_cpu'] / nauty60:.2f} (target <= 2; wall / nauty "
+            f"{single60['wall'] / nauty60:.2f} at this load)"
+        )
+        biggest = build(100, jobs=1)
+        print(_line("build to 100, 1 process", biggest))
+        jobs2 = build(100, jobs=2)
+        print(_line("build to 100, --jobs 2", jobs2))
+        cluster2 = build(100, cluster="local:2")
+        print(
+            _line("build to 100, --cluster local:2", cluster2)
+            + f" (with cluster start {cluster2['outer_wall']:.1f} s)"
+        )
+        for bound, wanted in ((200, args.area_200), (300, args.area_300)):
+            if wanted:
+                biggest = build(bound, jobs=2)
+                print(_line(f"build to {bound}, --jobs 2", biggest))
+    old, fast = old_against_fast(args.old_area)
+    print(
+        f"classification to {args.old_area}, 1 process: explicit-net path {old:.2f} s CPU, "
+        f"fast path {fast:.2f} s CPU ({old / fast:.1f}x)"
+    )
+    print(f"classification CPU of single areas (load {os.getloadavg()[0]:.2f}):")
+    samples = sample_costs(args.sample_areas)
+    c, k = fit(samples, 0)
+    print(f"cost per area, fitted on those: {c:.3g} * A^{k:.2f} s CPU")
+    if biggest is not None:
+        per_area = biggest["per_area"]
+        top = per_area[-1][0]
+        measured = sum(s for _a, s, _n, _c in per_area)
+        predicted = sum(c * a**k for a in range(1, top + 1))
+        print(
+            f"  check: the build to {top} stored {measured:.1f} s of per-area time "
+            f"(classify + write, wall), the fit predicts {predicted:.1f} s CPU"
+        )
+    total = sum(c * a**k for a in range(1, 1001))
+    largest = c * 1000**k
+    sets = sum(parameter_set_count(a) for a in range(1, 1001))
+    size = (
+        ""
+        if biggest is None
+        else (
+            f", catalog about {biggest['size_mb'] * sets / biggest['parameter_sets'] / 1000:.1f} GB"
+        )
+    )  # bytes grow with the parameter sets stored
+    print(
+        f"prediction to 1,000: {total / 3600:.2f} CPU hours over 1,000 tasks (largest "
+        f"{largest:.0f} s), {sets:,} parameter sets{size}"
+    )
+    for machines in args.machines:
+        workers = machines * args.cores
+        wall = max(total / workers, largest)
+        print(f"  {machines} machine(s) x {args.cores} workers: about {wall / 60:.0f} min wall")
+
+
+if __name__ == "__main__":
+    main()
