@@ -127,7 +127,7 @@ def test_processes_show_a_set_and_the_matched_reading_is_named(db: str) -> None:
     lines = result.stdout.splitlines()
     assert "matched reading" in lines[0]
     (row,) = [line for line in lines if "C(1,3,1,3)" in line or "C(3,1,3,1)" in line]
-    assert " 1, 3 " in row and ".." not in row
+    assert " 1,3 " in row and ".." not in row
     # the matched reading is the one with 3 processes: beta = 3 forward tokens, delta = 3
     assert row.rstrip().endswith("C(1,3,1,3)")
     # a query on class fields alone names no reading

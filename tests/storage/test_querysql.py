@@ -524,7 +524,7 @@ def test_column_clauses_show_values_as_text(sqlite_engine: Engine) -> None:
             if field.level is Level.CLASS or len(values) == 1:
                 expected.append(text(values[0]))
             else:  # the set of values (issue 8: '1..3' would read as a range)
-                expected.append(", ".join(text(v) for v in values))
+                expected.append(",".join(text(v) for v in values))
         assert list(rows[class_id]) == expected, class_id
 
 
@@ -612,7 +612,7 @@ def test_columns_list_value_sets_alike_on_both_stores(
     assert many  # classes whose members have three or more values of gamma
     for cid in many:
         gammas = sorted({int(m["gamma"]) for m in DATA.members[cid]})
-        assert answers[1][cid][0] == ", ".join(map(str, gammas))
+        assert answers[1][cid][0] == ",".join(map(str, gammas))
 
 
 @pytest.mark.postgres
@@ -625,7 +625,7 @@ def test_sort_and_columns_on_postgresql(postgres_engine: Engine) -> None:
         slowness: dict[str, str] = {row[0]: row[1] for row in rows}
     assert ordered[0] == next(c["id"] for c in DATA.classes if c["area"] == 200)
     # C(2,1,1,1) and its swap C(1,2,1,1) have w = 1/3 and -1/3 (docs/theory/check-values.md table).
-    assert slowness[class_of(ParameterSet(2, 1, 1, 1))] == "-1/3, 1/3"
+    assert slowness[class_of(ParameterSet(2, 1, 1, 1))] == "-1/3,1/3"
 
 
 @pytest.mark.postgres
@@ -816,7 +816,7 @@ def test_matched_readings_name_the_readings_that_matched(
     statement = compile_query(tree).add_columns(clause)
     for engine in (sqlite_engine, postgres_engine):
         with engine.connect() as connection:
-            rows = dict(connection.execute(statement).tuples().all())
+            rows = {row[0]: row[1] for row in connection.execute(statement)}
         assert set(rows) == evaluate(tree)
         for class_id, matched in rows.items():
             assert matched == matched_in_python(tree, class_id), class_id

@@ -192,7 +192,7 @@ def render_query_docs() -> str:
         "field sorts a class by its smallest value among the members (largest when "
         "descending). Ties keep catalog order (area, then rank). The same field names select "
         "columns; a reading- or parameter-level column shows the set of its values over the "
-        "readings or members, smallest first, as `1, 3` (not `1..3`, which in a query means "
+        "readings or members, smallest first, as `1,3` (not `1..3`, which in a query means "
         "a range). When a query reads a reading or parameter-set field, `zoo find` names the "
         "readings that made each class match (column `matched reading`, by normal form).",
         "",

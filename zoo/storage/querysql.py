@@ -368,7 +368,7 @@ def column_clause(field_name: str) -> Label[str]:
     """The value of a field for the class row of the enclosing statement, as labelled text.
 
     Class-level fields give their value; reading- and parameter-level fields give the set of
-    values over the readings or members, smallest first, as ``1, 3`` (never ``1..3``, which in
+    values over the readings or members, smallest first, as ``1,3`` (never ``1..3``, which in
     the query language means a range and would claim 2). The label is the field's canonical
     name.
     """
@@ -393,7 +393,8 @@ def column_clause(field_name: str) -> Label[str]:
         .correlate(_CLASSES)
         .subquery()
     )
-    joined = select(func.aggregate_strings(distinct.c.value, ", ")).scalar_subquery()
+    # No space after the comma: a table cell stays one word for tools that split on blanks.
+    joined = select(func.aggregate_strings(distinct.c.value, ",")).scalar_subquery()
     return joined.label(field.name)
 
 
