@@ -685,7 +685,8 @@ def test_draw_refuses_unknown_suffixes(tmp_path: Path) -> None:
     assert result.exit_code == 1
     assert result.stderr == (
         f"Error: cannot tell the picture format from the suffix '.jpg' of {target}; name the "
-        "file .svg, .png, .dot, .gv or give --format svg, png or dot\n"
+        "file .svg, .png, .pdf, .tex, .tikz, .dot, .gv or give --format svg, png, pdf, tikz "
+        "or dot\n"
     )
     assert not target.exists()
     svg = tmp_path / "x.svg"
