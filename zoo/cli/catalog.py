@@ -350,7 +350,7 @@ def _default_value(entry: ClassEntry, name: str) -> str:
     if name == "frame":
         return entry.frame_id
     if name == "processes":
-        values = sorted({int(str(r["processes"])) for r in entry.readings})
+        values = sorted({r.value("processes") for r in entry.readings})
         return str(values[0]) if len(values) == 1 else f"{values[0]}..{values[-1]}"
     value = entry.invariants.get(name)
     return "" if value is None else str(value)
