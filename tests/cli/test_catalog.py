@@ -16,6 +16,8 @@ from typer.testing import CliRunner
 from zoo.catalog.enumeration import cumulative_parameter_set_count
 from zoo.cli import app
 from zoo.cli.app import NOT_FOUND
+from zoo.core import algebra
+from zoo.core.params import parse_params
 
 runner = CliRunner()
 
@@ -493,14 +495,19 @@ def test_show_entry_prints_each_readings_own_group_and_iteration(area8: str) -> 
 
 
 def test_one_group_notation_in_show_params_and_show_id(area8: str) -> None:
-    # Every class of area 8: the group of each reading in zoo show ID is written exactly as
-    # zoo show PARAMS writes the group of that reading's label (Z_n when cyclic, never Z_1 x).
+    # Every class of area 8: each reading's group in zoo show ID is Z_n when cyclic, never
+    # Z_1 x Z_n (Smith normal form of the reading's label, docs/theory/lattice-key.md), and
+    # zoo show PARAMS writes the groups of CY8-8's two readings the same way.
     for rank in range(1, 14):
         shown = invoke("show", f"CY8-{rank}", "--db", area8)
         assert shown.exit_code == 0, shown.output
         assert "Z_1 " not in shown.stdout and " x Z_" not in shown.stdout
         for label, cells in _reading_rows(shown.stdout).items():
-            params = invoke("show", label)
-            row = next(line for line in params.stdout.splitlines() if "transition group" in line)
-            own = row.split("│")[2].strip().split(" (class")[0]
-            assert cells["transition group"] == own, (rank, label)
+            d1, order = algebra.transition_group(parse_params(label))
+            expected = f"Z_{order}" if d1 == 1 else f"Z_{d1} × Z_{order}"
+            assert cells["transition group"] == expected, (rank, label)
+            if rank == 8:
+                params = invoke("show", label)
+                lines = params.stdout.splitlines()
+                row = next(line for line in lines if "transition group" in line)
+                assert row.split("│")[2].strip().split(" (class")[0] == expected

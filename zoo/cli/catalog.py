@@ -367,7 +367,7 @@ def _default_value(entry: ClassEntry, name: str) -> str:
     if name == "frame":
         return entry.frame_id
     if name == "processes":
-        values = sorted({int(str(r["processes"])) for r in entry.readings})
+        values = sorted({int(str(r.value("processes"))) for r in entry.readings})
         return ",".join(map(str, values))  # a set: '1..3' would read as a range
     value = entry.invariants.get(name)
     return "" if value is None else str(value)

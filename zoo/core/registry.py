@@ -5,12 +5,17 @@ Every value a catalog entry carries is an ``Invariant`` here: its name, the leve
 its table label, unit, meaning, published source and how it is computed. The other places derive
 from this tuple:
 
-* the stored columns of ``zoo/storage/models.py`` (``Invariant.columns``, generated there);
+* the stored columns of ``zoo/storage/models.py`` (``Invariant.columns``, generated there) and
+  the rows a build writes (``models.stored_row`` from the values ``zoo/catalog/classify.py``
+  computes with ``compute``);
 * the query fields of ``zoo/query/fields.py`` (and so the parser, the SQL, ``--columns``, sort
   keys and ``docs/query-language.md``);
-* the keys and table labels of the catalog entries (``zoo/core/entries.py``) and of
+* the JSON keys of the catalog entries (``zoo/core/entries.py``) and the table labels of
   ``zoo show``;
-* the field list of ``docs/parameters.md`` (checked by ``tests/core/test_registry.py``).
+* the field table of ``docs/catalog.md`` (``render_invariant_table``, ``python -m
+  zoo.core.registry``).
+
+``tests/core/test_registry.py`` fails when an invariant is missing from any of these places.
 
 Adding an invariant is: its formula with its source (``zoo/core/invariants.py``), one entry
 here, a migration, and a check value (DEVELOPERS.md, "Adding an invariant").
