@@ -204,6 +204,8 @@ def identify(
             print_error(exc)
             continue
         not_cycloid += not answer.cycloid
+        for warning in answer.warnings:
+            typer.echo(f"Warning: {warning}", err=True)
         if fmt is AnswerFormat.json:
             typer.echo(json.dumps(answer.as_dict(), ensure_ascii=False))
             continue

@@ -31,7 +31,7 @@ from __future__ import annotations
 import os
 from collections import Counter, deque
 from collections.abc import Callable, Sequence
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 
 from zoo.core.net import MarkedGraph
 from zoo.core.params import ParameterSet
@@ -85,6 +85,8 @@ class Identification:
     observables: Observables | None = None
     transition_map: tuple[tuple[str, str], ...] = field(default=())
     place_map: tuple[tuple[str, str], ...] = field(default=())
+    #: What the file reader had to assume (from ``PlaceTransitionNet.warnings``).
+    warnings: tuple[str, ...] = ()
 
     def as_dict(self) -> dict[str, object]:
         """JSON-ready form (docs/identify.md lists the keys)."""
@@ -99,6 +101,7 @@ class Identification:
             "id": self.class_id,
             "catalog": self.catalog,
             "reason": self.reason,
+            "warnings": list(self.warnings),
             "synthesized": [str(q) for q in self.synthesized],
             "observables": None if self.observables is None else self.observables.as_dict(),
             "mapping": None
@@ -479,15 +482,16 @@ def identify_net(
     layer never opens a database itself.
     """
     try:
-        return _identify(net, lookup if use_catalog else None)
+        answer = _identify(net, lookup if use_catalog else None)
     except _NotCycloid as refusal:
-        return Identification(
+        answer = Identification(
             source=net.source,
             cycloid=False,
             reason=refusal.reason,
             synthesized=refusal.synthesized,
             observables=refusal.observables,
         )
+    return replace(answer, warnings=net.warnings) if net.warnings else answer
 
 
 def _identify(net: PlaceTransitionNet, lookup: CatalogLookup | None) -> Identification:
