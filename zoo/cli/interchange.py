@@ -150,7 +150,7 @@ def identify(
     files: Annotated[
         list[Path],
         typer.Argument(
-            metavar="FILE...",
+            metavar="FILE",
             help="PNML files or marked-graph text files (told apart by their content).",
             show_default=False,
         ),
