@@ -96,11 +96,20 @@ ONE_REFERENCE_METAVARS = frozenset({"PARAMS|ID", "ID"})
 
 
 def _say_one_reference(param: Any) -> None:
-    """Usage ``zoo show [OPTIONS] PARAMS|ID`` for an argument that reads one reference from
-    several words; typer would print ``{PARAMS|ID}...``, which promises several."""
-    if getattr(param, "nargs", 1) != 1 and param.metavar in ONE_REFERENCE_METAVARS:
-        metavar = param.metavar
-        param._usage_display_name = lambda: metavar
+    """Usage lines in the POSIX form: ``P1 P2``, ``[QUERY]``, ``FILE...``, ``PARAMS|ID``.
+
+    Typer writes a required argument in braces (``{P1}``), which in a usage line means "one of
+    these", and ``{PARAMS|ID}...`` for an argument that reads ONE reference from several words,
+    which promises several; an argument is shown in capitals, in brackets when optional, with
+    ``...`` only when it really takes several values.
+    """
+    if getattr(param, "param_type_name", "") != "argument":
+        return
+    name = str(param.metavar or param.name or "").upper()
+    several = getattr(param, "nargs", 1) != 1 and name not in ONE_REFERENCE_METAVARS
+    shown = name + ("..." if several else "")
+    shown = shown if param.required else f"[{shown}]"
+    param._usage_display_name = lambda: shown
 
 
 class ZooGroup(TyperGroup):

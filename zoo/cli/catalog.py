@@ -63,6 +63,10 @@ JobsOption = Annotated[
 #: A --limit at least this large cannot cut any catalog: it means no limit.
 _NO_LIMIT = 2**62
 
+#: Rows ``find`` prints on a terminal when neither --limit nor --all is given: a screenful or two,
+#: not the thousands a broad query matches. Pipes and the machine formats keep every row.
+TERMINAL_LIMIT = 50
+
 #: Columns of ``find`` when --columns is not given.
 DEFAULT_COLUMNS = ("loop", "tokens", "processes", "states", "frame")
 
@@ -259,8 +263,21 @@ def find(
         typer.Option("--sort", "-s", help="Sort by a field; prefix - for descending (-states)."),
     ] = None,
     limit: Annotated[
-        int | None, typer.Option("--limit", "-l", min=0, help="Print at most this many classes.")
+        int | None,
+        typer.Option(
+            "--limit",
+            "-l",
+            min=0,
+            help=f"Print at most this many classes. Default: {TERMINAL_LIMIT} for a table on a "
+            "terminal, every class otherwise (pipes, csv, json, jsonl).",
+        ),
     ] = None,
+    show_all: Annotated[
+        bool,
+        typer.Option(
+            "--all", "-a", metavar=FLAG, help="Print every matching class, even on a terminal."
+        ),
+    ] = False,
     columns: Annotated[
         list[str] | None,
         typer.Option(
@@ -292,11 +309,25 @@ def find(
     """Find the catalog classes that match a query.
 
     When no catalog exists yet, the default one (area up to 100) is built first, once.
+    On a terminal a table shows the first TERMINAL_LIMIT classes and says how many match;
+    --all prints them all.
     Example: zoo find "processes = 3 and area < 100" --sort -states --limit 10
     """
     from zoo.catalog import service as catalog_service
     from zoo.catalog.build import ensure_catalog
 
+    if show_all and limit is not None:
+        raise fail("--all and --limit contradict each other: give one of them.", status=2)
+    # A person at a terminal gets a screenful and the total; a script reading a pipe gets all.
+    cut_for_terminal = (
+        limit is None
+        and not show_all
+        and fmt is FindFormat.table
+        and not count
+        and _stdout_is_terminal()
+    )
+    if cut_for_terminal:
+        limit = TERMINAL_LIMIT
     try:
         # A mistyped query must fail at once, not after building the default catalog.
         from zoo.query.parser import parse_query, parse_sort_key
@@ -340,7 +371,14 @@ def find(
             catalog.close()
     except ZooError as exc:  # a query syntax error also gets its caret line
         raise fail(exc) from None
-    _print_find(result, fmt, columns)
+    _print_find(result, fmt, columns, hint_all=cut_for_terminal)
+
+
+def _stdout_is_terminal() -> bool:
+    try:
+        return sys.stdout.isatty()
+    except (AttributeError, ValueError):  # a closed or replaced stdout is no terminal
+        return False
 
 
 def _requested_columns(columns: Sequence[str] | None) -> list[str]:
@@ -381,7 +419,9 @@ def _cell(result: FindResult, index: int, name: str, custom: bool) -> str:
     return _default_value(entry, name)
 
 
-def _print_find(result: FindResult, fmt: FindFormat, columns: Sequence[str] | None) -> None:
+def _print_find(
+    result: FindResult, fmt: FindFormat, columns: Sequence[str] | None, hint_all: bool = False
+) -> None:
     sys.set_int_max_str_digits(0)
     custom = bool(columns)
     # One column per field; the member list is always the last column.
@@ -391,6 +431,8 @@ def _print_find(result: FindResult, fmt: FindFormat, columns: Sequence[str] | No
     summary = ("1 class matches" if result.total == 1 else f"{result.total:,} classes match") + (
         f"; showing {shown:,}." if shown < result.total else "."
     )
+    if hint_all and shown < result.total:
+        summary += f" All {result.total:,}: add --all (or --limit N for N)."
     if fmt in (FindFormat.markdown, FindFormat.latex):
         _print_paper_table(result, fmt, names, custom, f"{summary} {note}")
         return

@@ -128,7 +128,7 @@ def identify(
     files: Annotated[
         list[Path],
         typer.Argument(
-            metavar="FILE...",
+            metavar="FILE",
             help="PNML files or marked-graph text files (told apart by their content).",
             show_default=False,
         ),
@@ -185,6 +185,8 @@ def identify(
             print_error(exc)
             continue
         not_cycloid += not answer.cycloid
+        for warning in answer.warnings:
+            typer.echo(f"Warning: {warning}", err=True)
         if fmt is AnswerFormat.json:
             typer.echo(json.dumps(answer.as_dict(), ensure_ascii=False))
             continue

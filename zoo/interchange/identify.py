@@ -38,7 +38,7 @@ from __future__ import annotations
 import os
 from collections import Counter, deque
 from collections.abc import Callable, Sequence
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 
 from zoo.core.net import MarkedGraph
 from zoo.core.params import ParameterSet
@@ -98,6 +98,8 @@ class Identification:
     net_params: ParameterSet | None = None  # the class whose net it is, marking unreachable
     net_class_id: str | None = None
     circuit: Circuit | None = None
+    #: What the file reader had to assume (from ``PlaceTransitionNet.warnings``).
+    warnings: tuple[str, ...] = ()
 
     def as_dict(self) -> dict[str, object]:
         """JSON-ready form (docs/identify.md lists the keys)."""
@@ -112,6 +114,7 @@ class Identification:
             "id": self.class_id,
             "catalog": self.catalog,
             "reason": self.reason,
+            "warnings": list(self.warnings),
             "synthesized": [str(q) for q in self.synthesized],
             "observables": None if self.observables is None else self.observables.as_dict(),
             "mapping": None
@@ -496,17 +499,19 @@ def identify_net(
     layer never opens a database itself.
     """
     try:
-        return _identify(net, lookup if use_catalog else None)
+        answer = _identify(net, lookup if use_catalog else None)
     except _NotCycloid as refusal:
         if refusal.unreachable is not None:
-            return refusal.unreachable
-        return Identification(
-            source=net.source,
-            cycloid=False,
-            reason=refusal.reason,
-            synthesized=refusal.synthesized,
-            observables=refusal.observables,
-        )
+            answer = refusal.unreachable
+        else:
+            answer = Identification(
+                source=net.source,
+                cycloid=False,
+                reason=refusal.reason,
+                synthesized=refusal.synthesized,
+                observables=refusal.observables,
+            )
+    return replace(answer, warnings=net.warnings) if net.warnings else answer
 
 
 def _identify(net: PlaceTransitionNet, lookup: CatalogLookup | None) -> Identification:

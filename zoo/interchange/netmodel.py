@@ -59,6 +59,7 @@ class PlaceTransitionNet:
     ``places`` and ``transitions`` are the element names (PNML ids, or the names of the net text
     format), unique over both kinds; ``tokens[i]`` is the initial marking of ``places[i]``.
     ``labels`` maps an element to the display name the file gave it, where that differs.
+    ``warnings`` are one-line notes on what the reader had to assume (e.g. a missing net type).
     """
 
     source: str
@@ -69,6 +70,7 @@ class PlaceTransitionNet:
     arcs: tuple[Arc, ...]
     labels: tuple[tuple[str, str], ...] = ()
     pages: int = 1
+    warnings: tuple[str, ...] = ()
 
     def label_of(self, element: str) -> str:
         """The file's display name of an element (its own name when the file gave none)."""

@@ -198,18 +198,31 @@ def parse_xml(data: bytes, source: str) -> ET.Element:
         raise FormatError(f"{source}: cannot be decoded as XML ({exc})") from None
 
 
+_NODES = ("place", "transition", "arc", "referencePlace", "referenceTransition")
+
+
 def _iter_page_objects(
-    net_element: ET.Element, source: str, pages_seen: list[str]
+    net_element: ET.Element, source: str, pages_seen: list[str], warnings: list[str]
 ) -> Iterator[ET.Element]:
     """Every object of every page of a net, pages nested to any depth, without recursion.
 
-    The id of every page visited is appended to ``pages_seen``.
+    The id of every page visited is appended to ``pages_seen``. Objects written straight under
+    ``<net>`` (some tools leave out the page) are read too, with a warning, rather than dropped.
     """
     pages = _children(net_element, "page")
-    if not pages:
+    loose = [child for child in net_element if _local(child.tag)[1] in _NODES]
+    if not pages and not loose:
         raise FormatError(
             f"{source}: the net has no <page>; PNML places, transitions and arcs live on a page"
         )
+    if loose:
+        warnings.append(
+            f"{source}: {len(loose)} places, transitions or arcs stand directly under <net>, "
+            "outside any <page>; read as if on one page (PNML wants them inside "
+            '<page id="...">)'
+        )
+        pages_seen.append("")
+        yield from loose
     stack = [(page, page.get("id", "?")) for page in reversed(pages)]
     while stack:
         page, page_id = stack.pop()
@@ -222,6 +235,43 @@ def _iter_page_objects(
             elif local:
                 yield child
         stack.extend(reversed(nested))
+
+
+#: Children a PT-net label (initialMarking, inscription, name) may have besides its text.
+_LABEL_EXTRAS = ("graphics", "toolspecific")
+#: Labels a node may carry in a PT net (ISO/IEC 15909-2, PT-net type).
+_PT_LABELS = {
+    "place": {"name", "initialMarking", "graphics", "toolspecific"},
+    "transition": {"name", "graphics", "toolspecific"},
+    "arc": {"inscription", "graphics", "toolspecific"},
+}
+
+
+def _count_label(
+    element: ET.Element, local: str, what: str, source: str, example: str
+) -> str | None:
+    """The ``text`` of a number label, refusing forms zoo does not read instead of guessing.
+
+    A marking written as ``<value>`` or ``<token>`` (high-level or tool forms) would otherwise
+    read as no tokens and turn a live net into a dead one without a word.
+    """
+    labels = _children(element, local)
+    if not labels:
+        return None
+    label = labels[0]
+    foreign = [
+        name
+        for name in (_local(child.tag)[1] for child in label)
+        if name and name != "text" and name not in _LABEL_EXTRAS
+    ]
+    loose_text = (label.text or "").strip()
+    if foreign or (loose_text and not _children(label, "text")):
+        found = f"<{foreign[0]}>" if foreign else f"the bare text {loose_text[:20]!r}"
+        raise FormatError(
+            f"{source}: {what} is written as <{local}> holding {found}, a form zoo does not "
+            f"read; write the PT-net form <{local}><text>{example}</text></{local}>"
+        )
+    return _label_text(element, local)
 
 
 def _count(text: str | None, what: str, source: str, default: int) -> int:
@@ -257,8 +307,15 @@ def parse_pnml(data: bytes, source: str = "<pnml>") -> PlaceTransitionNet:
             "split them into separate files"
         )
     net = nets[0]
+    warnings: list[str] = []
     net_type = (net.get("type") or "").strip()
-    if net_type not in READABLE_TYPES:
+    untyped = not net_type
+    if untyped:
+        warnings.append(
+            f"{source}: the <net> has no type attribute; read as a place/transition net "
+            f'(PNML names it: <net id="..." type="{PTNET_TYPE}">)'
+        )
+    elif net_type not in READABLE_TYPES:
         raise FormatError(
             f"{source}: net type {net_type!r} is not a place/transition net; zoo reads the type "
             f"{PTNET_TYPE}"
@@ -283,14 +340,29 @@ def parse_pnml(data: bytes, source: str = "<pnml>") -> PlaceTransitionNet:
             )
         return element_id
 
-    for element in _iter_page_objects(net, source, page_ids):
+    for element in _iter_page_objects(net, source, page_ids, warnings):
         _, local = _local(element.tag)
         element_id = element.get("id")
+        if untyped and local in _PT_LABELS:
+            # Without a type, only a net whose every label is a PT-net label is read as one.
+            extra = [
+                name
+                for name in (_local(child.tag)[1] for child in element)
+                if name and name not in _PT_LABELS[local]
+            ]
+            if extra:
+                raise FormatError(
+                    f"{source}: the <net> has no type attribute and {local} {element_id!r} has a "
+                    f"<{extra[0]}> label, which place/transition nets do not have; zoo reads "
+                    f'PT nets only: save the net as type="{PTNET_TYPE}"'
+                )
         if local == "place":
             name = claim(element_id, "place")
             kinds[name] = PLACE
             places.append(name)
-            marking = _label_text(element, "initialMarking")
+            marking = _count_label(
+                element, "initialMarking", f"the initial marking of place {name!r}", source, "1"
+            )
             tokens.append(_count(marking, f"the initial marking of place {name!r}", source, 0))
         elif local == "transition":
             name = claim(element_id, "transition")
@@ -306,7 +378,12 @@ def parse_pnml(data: bytes, source: str = "<pnml>") -> PlaceTransitionNet:
             name = claim(element_id, "arc")
             kinds[name] = "arc"
             weight = _count(
-                _label_text(element, "inscription"), f"the inscription of arc {name!r}", source, 1
+                _count_label(
+                    element, "inscription", f"the inscription of arc {name!r}", source, "1"
+                ),
+                f"the inscription of arc {name!r}",
+                source,
+                1,
             )
             if weight == 0:
                 raise FormatError(
@@ -318,6 +395,11 @@ def parse_pnml(data: bytes, source: str = "<pnml>") -> PlaceTransitionNet:
         else:
             continue
         display = _label_text(element, "name")
+        if display is None and _children(element, "name") and local in ("place", "transition"):
+            warnings.append(
+                f"{source}: the name of {local} {element_id!r} has no <text>; shown by its id "
+                "(PNML writes <name><text>...</text></name>)"
+            )
         if local in ("place", "transition") and display is not None and display.strip():
             if display.strip() != element_id:
                 labels.append((str(element_id), display.strip()))
@@ -369,6 +451,7 @@ def parse_pnml(data: bytes, source: str = "<pnml>") -> PlaceTransitionNet:
         arcs=tuple(arcs),
         labels=tuple(labels),
         pages=len(page_ids),
+        warnings=tuple(warnings),
     )
 
 
