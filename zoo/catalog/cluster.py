@@ -22,7 +22,7 @@ from types import TracebackType
 from typing import Any
 
 from zoo.catalog.classify import AreaClassification, classify_area
-from zoo.errors import CatalogError, ParameterError
+from zoo.errors import CatalogError, MissingExtra, ParameterError, extra_advice
 
 __all__ = ["ClusterClassifier", "check_cluster_address"]
 
@@ -69,9 +69,8 @@ class ClusterClassifier:
         try:
             from distributed import Client, LocalCluster
         except ImportError:
-            raise CatalogError(
-                "--cluster needs Dask's distributed package; install it with "
-                "pip install 'zoo[cluster]'"
+            raise MissingExtra(
+                extra_advice("Dask's distributed package", "cluster", "--cluster")
             ) from None
         local = _LOCAL.fullmatch(self.address)
         try:

@@ -216,7 +216,8 @@ def build(
         typer.Option(
             "--cluster",
             help="Classify on a Dask cluster: a scheduler address (tcp://HOST:8786) or local:N "
-            "for N local worker processes; this process still writes. Needs zoo[cluster].",
+            "for N local worker processes; this process still writes. Needs the cluster extra "
+            "(pip install 'cycloid-zoo[cluster]').",
         ),
     ] = None,
 ) -> None:

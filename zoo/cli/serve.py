@@ -13,6 +13,7 @@ import typer
 from zoo.cli.app import app, fail
 from zoo.cli.options import ReadOnlyCatalogOption
 from zoo.errors import ParameterError, ZooError
+from zoo.version import DISTRIBUTION_NAME
 
 
 @app.command("serve")
@@ -38,7 +39,7 @@ def serve(
         except ImportError as exc:
             raise ZooError(
                 f"the web catalog needs the 'web' extra ({exc.name} is missing); install it "
-                "with: pip install 'zoo[web]'"
+                f"with: pip install '{DISTRIBUTION_NAME}[web]'"
             ) from None
         web_app = create_app(db)
     except ZooError as exc:
@@ -72,7 +73,7 @@ def site(
         except ImportError as exc:
             raise ZooError(
                 f"the static site needs the 'web' extra ({exc.name} is missing); install it "
-                "with: pip install 'zoo[web]'"
+                f"with: pip install '{DISTRIBUTION_NAME}[web]'"
             ) from None
         if outdir.exists() and not outdir.is_dir():
             raise ParameterError(f"{outdir} is a file; give a folder for the site")
