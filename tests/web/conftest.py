@@ -5,7 +5,6 @@ from __future__ import annotations
 
 import shutil
 import threading
-import time
 from collections.abc import Iterator
 from pathlib import Path
 from typing import Any
@@ -33,16 +32,27 @@ class LiveServer:
 
         self.app = create_app(location)
         config = uvicorn.Config(self.app, host="127.0.0.1", port=0, log_level="warning")
-        self.server = uvicorn.Server(config)
-        self.thread = threading.Thread(target=self.server.run, daemon=True)
+        self.ready = threading.Event()
+        ready = self.ready
+
+        class _Server(uvicorn.Server):
+            async def startup(self, sockets: Any = None) -> None:
+                await super().startup(sockets=sockets)
+                ready.set()  # listening: the event the test waits on
+
+        self.server = _Server(config)
+        self.thread = threading.Thread(target=self._run, daemon=True)
+
+    def _run(self) -> None:
+        try:
+            self.server.run()
+        finally:
+            self.ready.set()  # a server that failed to start wakes the waiter too
 
     def start(self) -> str:
         self.thread.start()
-        deadline = time.monotonic() + 30
-        while not self.server.started:
-            if time.monotonic() > deadline or not self.thread.is_alive():
-                raise RuntimeError("the web catalog did not start")
-            time.sleep(0.05)
+        if not self.ready.wait(timeout=30) or not self.server.started:
+            raise RuntimeError("the web catalog did not start")
         port = self.server.servers[0].sockets[0].getsockname()[1]
         return f"http://127.0.0.1:{port}"
 
