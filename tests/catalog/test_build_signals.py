@@ -25,7 +25,7 @@ from zoo.catalog.service import Catalog
 from zoo.errors import CatalogError
 
 ROOT = Path(__file__).resolve().parents[2]
-MAX_AREA = 26
+MAX_AREA = 52  # long enough that every stop lands while areas are still being classified
 #: Seconds after a run stored its first area (its pool is working) at which it is stopped.
 DELAYS = (0.0, 0.4, 0.8)
 
@@ -97,7 +97,9 @@ def test_stopped_builds_print_no_traceback_and_resume_to_identical_rows(
         assert "Traceback" not in err, err
         assert "Exception ignored" not in err, err
         if how == "ctrl-c":
-            assert process.returncode in (130, 0), err  # 0: it finished before the signal
+            # 130: stopped; 0: it finished before the signal; -SIGINT: the signal came while
+            # the finished process was exiting (the shell shows 130 alike), still no traceback.
+            assert process.returncode in (130, 0, -signal.SIGINT), err
             if process.returncode == 130:
                 assert err.rstrip().endswith("Interrupted."), err
         else:
