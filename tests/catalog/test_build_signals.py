@@ -27,7 +27,7 @@ from zoo.errors import CatalogError
 ROOT = Path(__file__).resolve().parents[2]
 MAX_AREA = 52  # long enough that every stop lands while areas are still being classified
 #: Seconds after a run stored its first area (its pool is working) at which it is stopped.
-DELAYS = (0.0, 0.4, 0.8)
+DELAYS = (0.0, 0.3, 0.6)
 
 
 def _start_build(location: str) -> subprocess.Popen[bytes]:

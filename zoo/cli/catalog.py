@@ -101,6 +101,9 @@ class ProgressBar:
         self._areas_done = 0
         self._sets_total = 0
         self._sets_done = 0
+        #: Said on standard error when a build really starts ({first}, {last}: its areas), so
+        #: that a query that has to build first never works silently.
+        self.announce: str | None = None
 
     def started(self, areas: Sequence[int], parameter_sets: int) -> None:
         from rich.progress import (
@@ -115,6 +118,8 @@ class ProgressBar:
 
         if not areas:
             return
+        if self.announce:
+            typer.echo(self.announce.format(first=areas[0], last=areas[-1]), err=True)
         self._areas_total = len(areas)
         self._sets_total = parameter_sets
         self._progress = Progress(
@@ -365,6 +370,11 @@ def find(
         holder: dict[str, Catalog] = {}
 
         def _open(bar: ProgressBar) -> BuildReport | None:
+            if exists:  # e.g. an empty catalog made by `zoo migrate`, or an interrupted build
+                bar.announce = (
+                    f"The catalog at {shown} lacks areas {{first}}..{{last}}: building them "
+                    "once before answering (later queries answer at once)."
+                )
             catalog, report = ensure_catalog(db, jobs=jobs, progress=bar)
             holder["catalog"] = catalog
             return report

@@ -1,0 +1,39 @@
+"""A query that must build first says so before it starts (issue 8).
+
+An empty catalog made by ``zoo migrate`` used to make ``zoo find`` build for a minute with no
+word (off a terminal even the progress bar shows only at the end).
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import pytest
+from typer.testing import CliRunner
+
+from zoo.cli import app
+
+runner = CliRunner()
+
+
+def test_find_on_an_empty_migrated_catalog_announces_the_build(
+    tmp_path: Path, monkeypatch: pytest.MonkeyPatch
+) -> None:
+    import zoo.catalog.service
+
+    monkeypatch.setattr(zoo.catalog.service, "DEFAULT_MAX_AREA", 8)  # a small default catalog
+    location = str(tmp_path / "migrated.sqlite3")
+    created = runner.invoke(app, ["migrate", "--db", location])
+    assert created.exit_code == 0, created.output
+    first = runner.invoke(app, ["find", "area < 5", "--db", location, "--jobs", "1"])
+    assert first.exit_code == 0, first.output
+    announced = [line for line in first.stderr.splitlines() if "lacks areas" in line]
+    assert announced == [
+        f"The catalog at {location} lacks areas 1..8: building them once before answering "
+        "(later queries answer at once)."
+    ]
+    assert first.stderr.startswith("The catalog at")  # before anything else
+    again = runner.invoke(app, ["find", "area < 5", "--db", location])
+    assert again.exit_code == 0, again.output
+    assert "lacks areas" not in again.stderr
+    assert again.stdout == first.stdout
