@@ -151,7 +151,7 @@ class ProgressBar:
             advance=max(1, stats.parameter_sets * stats.area),
             sets=self._sets_text(),
             areas=f"areas {self._areas_done}/{self._areas_total} (area {stats.area}: "
-            f"{stats.classes} classes)",
+            f"{stats.classes} {'class' if stats.classes == 1 else 'classes'})",
         )
 
     def finished(self, report: BuildReport) -> None:
