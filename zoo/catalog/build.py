@@ -29,6 +29,7 @@ from zoo.catalog.seeds import Seed, load_seed_directory
 from zoo.catalog.service import MAX_BUILD_AREA, AreaStats, Catalog
 from zoo.errors import CatalogError, ParameterError
 from zoo.storage import database
+from zoo.storage.buildlock import build_in_progress, build_lock
 from zoo.storage.convert import READING_ID_STRIDE, area_rows
 from zoo.storage.repository import StoreConflict
 from zoo.version import __version__
@@ -87,6 +88,24 @@ def build_catalog(
     cluster: str | None = None,
 ) -> BuildReport:
     """Store every area 1..max_area that is not stored yet; one transaction per area.
+
+    Holds the catalog's build lock while it runs (``zoo.storage.buildlock``), so that readers
+    know a build is in progress and answer from what is complete instead of building too.
+    """
+    with build_lock(catalog.engine):
+        return _build_catalog(catalog, max_area, jobs, progress, seeds=seeds, cluster=cluster)
+
+
+def _build_catalog(
+    catalog: Catalog,
+    max_area: int,
+    jobs: int = 1,
+    progress: BuildProgress | None = None,
+    *,
+    seeds: Sequence[Seed] | None = None,
+    cluster: str | None = None,
+) -> BuildReport:
+    """The build itself, under the build lock (``build_catalog``).
 
     ``jobs`` worker processes classify areas (nauty included); this process writes them in
     increasing order. Areas already complete are never rewritten. ``seeds`` defaults to the
@@ -265,7 +284,9 @@ def ensure_catalog(
       main job resumes where Ctrl-C stopped it.
 
     A catalog that a user built to another bound is never extended here (that is
-    ``zoo build``'s decision); queries beyond it get the completeness warning instead.
+    ``zoo build``'s decision); queries beyond it get the completeness warning instead. Nor is
+    one that another process is building now: the reader answers from what is complete
+    (issue 8), and the other build's target stays as it set it.
     """
     bound = catalog_service.DEFAULT_MAX_AREA if max_area is None else max_area
     check_build_bound(bound)
@@ -273,6 +294,8 @@ def ensure_catalog(
     if database.catalog_exists(url):
         catalog = Catalog.open(location)
         try:
+            if build_in_progress(catalog.engine):
+                return catalog, None
             if not _is_unfinished_default_build(catalog, bound):
                 return catalog, None
         except BaseException:

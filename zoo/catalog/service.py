@@ -31,6 +31,7 @@ from zoo.core.entries import AreaStats, ClassEntry, FrameEntry, ReadingEntry, Se
 from zoo.core.params import ParameterSet, parse_params
 from zoo.errors import CatalogError, NotInCatalog, ParameterError
 from zoo.storage import database
+from zoo.storage.buildlock import build_in_progress
 from zoo.storage.repository import Repository
 
 if TYPE_CHECKING:
@@ -83,6 +84,8 @@ class FindResult:
     #: Per entry, the readings (normal forms) holding a member that satisfies the query; empty
     #: when the query reads no reading or parameter-set field (every reading matches alike).
     matched: tuple[str | None, ...] = ()
+    #: Whether another process was building the catalog when the answer was read.
+    building: bool = False
 
     # A result is the sequence of its entries: ``result[0]``, ``len(result)``, ``for e in result``.
     def __len__(self) -> int:
@@ -170,6 +173,11 @@ class FindResult:
             )
         elif self.area_bound is None:
             note += " The query does not bound the area; larger areas are not in the answer."
+        if self.building:
+            note += (
+                " A build of this catalog is in progress: this answer holds the areas complete "
+                "when it was read; ask again later for more."
+            )
         return note
 
 
@@ -273,7 +281,7 @@ class Catalog:
         if file is None or self.complete_areas() or self.stats() or "encoding" in self.info():
             return False
         self.engine.dispose()
-        for suffix in ("", "-wal", "-shm", "-journal"):
+        for suffix in ("", "-wal", "-shm", "-journal", "-buildlock"):
             Path(f"{file}{suffix}").unlink(missing_ok=True)
         self.created = False
         return True
@@ -435,6 +443,7 @@ class Catalog:
             matched = reader.matched_readings(ids, node)
             complete_to = _complete_prefix(reader.complete_areas())
         return FindResult(
+            building=build_in_progress(self.engine),
             query=query,
             entries=tuple(entries),
             total=total,
@@ -451,7 +460,15 @@ class Catalog:
         from zoo.query.parser import parse_query, referenced_area_bound
 
         bound = referenced_area_bound(parse_query(query)) if query.strip() else None
-        result = FindResult(query, (), 0, self.complete_to(), bound, location=self.url)
+        result = FindResult(
+            query,
+            (),
+            0,
+            self.complete_to(),
+            bound,
+            location=self.url,
+            building=build_in_progress(self.engine),
+        )
         return result.completeness_note()
 
     def count(self, query: str, *, seed: str | None = None) -> int:
@@ -488,9 +505,21 @@ class Catalog:
 
 def describe_location(location: str | None = None) -> tuple[str, bool]:
     """How the catalog at ``location`` (``--db``, else $ZOO_CATALOG, else the default file) is
-    named to the user, and whether a catalog exists there; creates nothing but its folder."""
+    named to the user, and whether a catalog with content exists there; creates nothing but its
+    folder. A schema that nothing was ever stored in (``zoo migrate`` on a new file) and that no
+    build is filling counts as no catalog, so that ``zoo find`` says it builds one.
+    """
     url = database.resolve_location(location)
-    return database.display_location(url), database.catalog_exists(url)
+    shown = database.display_location(url)
+    if not database.catalog_exists(url):
+        return shown, False
+    engine = database.open_engine(url)
+    try:
+        with Repository(engine).read() as reader:
+            empty = not reader.complete_areas() and "encoding" not in reader.info()
+        return shown, not empty or build_in_progress(engine)
+    finally:
+        engine.dispose()
 
 
 def migrate_catalog(location: str | None = None) -> tuple[str, str | None, str | None]:
