@@ -22,9 +22,7 @@ def test_find_on_an_empty_migrated_catalog_says_it_builds(
     import zoo.catalog.service
 
     monkeypatch.setattr(zoo.catalog.service, "DEFAULT_MAX_AREA", 6)
-    location = tmp_path / "migrated.sqlite3"
-    monkeypatch.setenv("ZOO_CATALOG", str(location))
-    migrated = runner.invoke(app, ["migrate"])
+    migrated = runner.invoke(app, ["migrate"])  # the default location (isolated by conftest)
     assert migrated.exit_code == 0, migrated.output
     result = runner.invoke(app, ["find", "processes = 3 and area <= 6", "--count"])
     assert result.exit_code == 0, result.output
@@ -32,3 +30,32 @@ def test_find_on_an_empty_migrated_catalog_says_it_builds(
     assert "building areas 1..6" in result.stderr
     again = runner.invoke(app, ["find", "processes = 3 and area <= 6", "--count"])
     assert "building" not in again.stderr and again.stdout == "1\n"
+
+
+@pytest.mark.parametrize(
+    ("args", "env", "fragment"),
+    [
+        (["--db", "{missing}"], {}, "no catalog at {missing}; a named catalog"),
+        ([], {"ZOO_CATALOG": "{missing}"}, "no catalog at {missing}; a named catalog"),
+        (["--db", ""], {}, "--db is empty"),
+        (["--db", "  "], {}, "--db is empty"),
+        (["--db", "postgresql://"], {}, "names no database"),
+        ([], {"ZOO_CATALOG": "postgresql://"}, "names no database"),
+    ],
+)
+def test_find_never_builds_a_named_catalog_that_is_not_there(
+    tmp_path: Path,
+    monkeypatch: pytest.MonkeyPatch,
+    args: list[str],
+    env: dict[str, str],
+    fragment: str,
+) -> None:
+    missing = str(tmp_path / "mistyped.sqlite3")
+    for key, value in env.items():
+        monkeypatch.setenv(key, value.format(missing=missing))
+    result = runner.invoke(app, ["find", "area < 4", *(a.format(missing=missing) for a in args)])
+    assert result.exit_code == 1
+    assert result.stderr.count("\n") == 1 and fragment.format(missing=missing) in result.stderr
+    assert "zoo build" in result.stderr or "no catalog" not in fragment
+    assert not Path(missing).exists()
+    assert list(tmp_path.iterdir()) == []

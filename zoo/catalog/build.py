@@ -31,6 +31,7 @@ from zoo.errors import CatalogError, ParameterError
 from zoo.storage import database
 from zoo.storage.buildlock import build_in_progress, build_lock
 from zoo.storage.convert import READING_ID_STRIDE, area_rows
+from zoo.storage.location import chosen_location
 from zoo.storage.repository import StoreConflict
 from zoo.version import __version__
 
@@ -283,6 +284,9 @@ def ensure_catalog(
       ``build_target`` equals ``max_area``) and it was interrupted before reaching it: the
       main job resumes where Ctrl-C stopped it.
 
+    A named catalog (``location`` or ``$ZOO_CATALOG``) that does not exist is a
+    ``CatalogError``: only the default location is built on first use.
+
     A catalog that a user built to another bound is never extended here (that is
     ``zoo build``'s decision); queries beyond it get the completeness warning instead. Nor is
     one that another process is building now: the reader answers from what is complete
@@ -290,7 +294,11 @@ def ensure_catalog(
     """
     bound = catalog_service.DEFAULT_MAX_AREA if max_area is None else max_area
     check_build_bound(bound)
-    url = database.resolve_location(location)
+    url = database.resolve_location(catalog_service.require_named_catalog(location))
+    if not database.catalog_exists(url) and chosen_location(location):
+        # Only the default catalog is built on first use; a named one that is not there is
+        # most likely mistyped, and building it would put a catalog somewhere unexpected.
+        raise CatalogError(catalog_service.no_catalog_message(url))
     if database.catalog_exists(url):
         catalog = Catalog.open(location)
         try:

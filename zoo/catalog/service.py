@@ -32,6 +32,7 @@ from zoo.core.params import ParameterSet, parse_params
 from zoo.errors import CatalogError, NotInCatalog, ParameterError
 from zoo.storage import database
 from zoo.storage.buildlock import build_in_progress
+from zoo.storage.location import CATALOG_ENV_VAR, chosen_location
 from zoo.storage.repository import Repository
 
 if TYPE_CHECKING:
@@ -509,9 +510,11 @@ def describe_location(location: str | None = None) -> tuple[str, bool]:
     folder. A schema that nothing was ever stored in (``zoo migrate`` on a new file) and that no
     build is filling counts as no catalog, so that ``zoo find`` says it builds one.
     """
-    url = database.resolve_location(location)
+    url = database.resolve_location(require_named_catalog(location))
     shown = database.display_location(url)
     if not database.catalog_exists(url):
+        if chosen_location(location):
+            raise CatalogError(no_catalog_message(url))
         return shown, False
     engine = database.open_engine(url)
     try:
@@ -520,6 +523,27 @@ def describe_location(location: str | None = None) -> tuple[str, bool]:
         return shown, not empty or build_in_progress(engine)
     finally:
         engine.dispose()
+
+
+def require_named_catalog(location: str | None) -> str | None:
+    """``location`` unless it is given but empty (``--db ''``), which is an error: an empty
+    value must not quietly mean the default catalog to a command that would build it."""
+    if location is not None and not location.strip():
+        raise CatalogError(
+            "--db is empty; give a catalog file or database URL, or leave --db out for the "
+            "default catalog"
+        )
+    return location
+
+
+def no_catalog_message(url: str) -> str:
+    """The one line for a named catalog that does not exist, with the command that builds it."""
+    shown = database.display_location(url)
+    return (
+        f"no catalog at {shown}; a named catalog (--db or {CATALOG_ENV_VAR}) is built only by "
+        f"zoo build: zoo build --max-area {DEFAULT_MAX_AREA} --db {shlex.quote(shown)} (check "
+        "the spelling if you meant an existing one)"
+    )
 
 
 def migrate_catalog(location: str | None = None) -> tuple[str, str | None, str | None]:

@@ -114,6 +114,12 @@ def _normalised_url(value: str) -> URL:
     if url.drivername in ("postgresql", "postgres"):
         url = url.set(drivername="postgresql+psycopg")
     backend = url.get_backend_name()
+    if backend == "postgresql" and not url.database:
+        # libpq would pick a database of its own (the user's name): never build there unasked.
+        raise CatalogError(
+            f"database URL {_without_password(value)!r} names no database; write it as "
+            "postgresql+psycopg://USER@HOST:PORT/DATABASE"
+        )
     if backend not in _SUPPORTED_BACKENDS:
         raise CatalogError(
             f"database URL {_display_url(url)!r} uses {backend}; zoo stores catalogs in SQLite "
