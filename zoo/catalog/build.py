@@ -41,6 +41,7 @@ __all__ = [
     "READING_ID_STRIDE",
     "BuildProgress",
     "BuildReport",
+    "area_span",
     "build_catalog",
     "check_build_bound",
     "default_jobs",
@@ -64,6 +65,25 @@ class BuildReport:
     stage_seconds: dict[str, float] = field(default_factory=dict)
     jobs: int = 1
     seeds: int = 0
+    #: Areas this build classified but found stored by another build when it came to write
+    #: them; the counts above leave them out.
+    stored_elsewhere: tuple[int, ...] = ()
+
+    def added_text(self) -> str:
+        """The areas this build stored: ``area 3`` or ``areas 1..2, 5..40``."""
+        return area_span(self.added)
+
+
+def area_span(areas: Sequence[int]) -> str:
+    """Areas as runs: ``area 3``, ``areas 1..2, 5..40`` (sorted, no gaps hidden)."""
+    runs: list[list[int]] = []
+    for area in sorted(areas):
+        if runs and area == runs[-1][1] + 1:
+            runs[-1][1] = area
+        else:
+            runs.append([area, area])
+    text = ", ".join(str(a) if a == b else f"{a}..{b}" for a, b in runs)
+    return f"area {text}" if len(areas) == 1 else f"areas {text}"
 
 
 class BuildProgress(Protocol):
@@ -132,6 +152,7 @@ def _build_catalog(
     stage = {"classify_algebra": 0.0, "classify_canonical": 0.0, "write": 0.0}
     totals = {"parameter_sets": 0, "readings": 0, "classes": 0, "frames": 0, "forms": 0}
     added: list[int] = []
+    elsewhere: list[int] = []
     if progress is not None:
         progress.started(todo, sum(parameter_set_count(a) for a in todo))
     seeds_by_area: dict[int, list[Seed]] = {}
@@ -146,7 +167,8 @@ def _build_catalog(
         stage["classify_canonical"] += result.seconds.get("canonical", 0.0)
         stage["write"] += write_seconds
         if not wrote:
-            continue  # a concurrent build stored it first
+            elsewhere.append(result.area)  # a concurrent build stored it first
+            continue
         added.append(result.area)
         totals["parameter_sets"] += result.parameter_set_count
         totals["readings"] += result.reading_count
@@ -173,6 +195,7 @@ def _build_catalog(
         canonical_forms=totals["forms"],
         wall_seconds=time.perf_counter() - started,
         stage_seconds=stage,
+        stored_elsewhere=tuple(elsewhere),
         jobs=jobs,
         seeds=len(seed_list),
     )

@@ -157,8 +157,11 @@ class ProgressBar:
 def _build_summary(report: BuildReport) -> str:
     if not report.added:
         return f"Nothing to do: the catalog is already complete up to area {report.complete_to}."
-    first, last = report.added[0], report.added[-1]
-    span = f"area {first}" if first == last else f"areas {first}..{last}"
+    from zoo.catalog.build import area_span
+
+    span = report.added_text()
+    if report.stored_elsewhere:
+        span += f" ({area_span(report.stored_elsewhere)} stored meanwhile by another build)"
     return (
         f"Stored {span}: {report.parameter_sets:,} parameter sets, {report.readings:,} "
         f"readings, {report.classes:,} classes, {report.frames:,} frames "
