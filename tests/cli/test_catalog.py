@@ -158,8 +158,10 @@ def test_find_builds_the_default_catalog_when_there_is_none(
     import zoo.catalog.service
 
     monkeypatch.setattr(zoo.catalog.service, "DEFAULT_MAX_AREA", 6)  # the real default is 100
-    location = tmp_path / "first.sqlite3"
-    monkeypatch.setenv("ZOO_CATALOG", str(location))
+    import platformdirs
+
+    # Only the default location is built on first use (issue 8); conftest isolates it.
+    location = Path(platformdirs.user_data_dir("zoo")) / "catalog.sqlite3"
     result = invoke("find", "processes = 3 and area < 100", "--count")
     assert result.exit_code == 0, result.output
     # processes = gcd(beta, delta) = 3 needs 3 | beta and 3 | delta: in area <= 6 only
@@ -396,8 +398,10 @@ def test_interrupted_default_build_resumes_on_the_next_find(tmp_path: Path) -> N
 
     from zoo.catalog.service import Catalog
 
-    location = tmp_path / "main-job.sqlite3"
-    env = {**os.environ, "ZOO_CATALOG": str(location)}
+    # The default location (only it is built on first use, issue 8), in a home of its own.
+    location = tmp_path / "zoo" / "catalog.sqlite3"
+    env = {**os.environ, "XDG_DATA_HOME": str(tmp_path)}
+    env.pop("ZOO_CATALOG", None)
     command = [sys.executable, "-c", _FIND_WITH_SMALL_DEFAULT]
     first, stored = _start_reporting(
         [sys.executable, "-c", _REPORT_STORED_AREAS + _FIND_WITH_SMALL_DEFAULT],

@@ -72,8 +72,8 @@ def old_catalog(tmp_path: Path) -> str:
 
 
 def test_revisions_form_one_linear_chain() -> None:
-    assert known_revisions() == ("0001", "0002")
-    assert head_revision() == "0002"
+    assert known_revisions() == ("0001", "0002", "0003")
+    assert head_revision() == "0003"
 
 
 def test_the_migrations_are_shipped_inside_the_package() -> None:
@@ -89,7 +89,7 @@ def test_the_migrations_are_shipped_inside_the_package() -> None:
 
 
 def test_upgrade_from_empty_creates_the_schema_of_the_models(db_url: str) -> None:
-    assert upgrade(db_url) == SchemaChange(None, "0002")
+    assert upgrade(db_url) == SchemaChange(None, "0003")
     engine = open_engine(db_url)
     require_current(engine)
     with engine.connect() as conn:
@@ -97,7 +97,7 @@ def test_upgrade_from_empty_creates_the_schema_of_the_models(db_url: str) -> Non
         assert compare_metadata(context, Base.metadata) == []
         info = dict(conn.execute(text("SELECT key, value FROM catalog_info")).all())
     assert set(inspect(engine).get_table_names()) == {*CORE_TABLES, "seeds", "alembic_version"}
-    assert info["schema_revision"] == "0002"
+    assert info["schema_revision"] == "0003"
     assert info["zoo_version"] == info["created_by"] == __version__
     engine.dispose()
 
@@ -115,7 +115,7 @@ def test_upgrade_of_a_current_catalog_is_a_no_op(migrated_db_url: str) -> None:
         conn.execute(text("INSERT INTO catalog_info (key, value) VALUES ('note', 'kept')"))
     before = table_rows(engine, ("catalog_info",))
     change = upgrade(migrated_db_url)
-    assert change == SchemaChange("0002", "0002") and not change.changed
+    assert change == SchemaChange("0003", "0003") and not change.changed
     assert table_rows(engine, ("catalog_info",)) == before
     engine.dispose()
 
@@ -136,7 +136,7 @@ def test_two_zoos_upgrading_at_once_do_not_collide(db_url: str) -> None:
     for thread in threads:
         thread.join(timeout=60)
     assert len(results) == 2
-    assert set(results) == {SchemaChange(None, "0002"), SchemaChange("0002", "0002")}
+    assert set(results) == {SchemaChange(None, "0003"), SchemaChange("0003", "0003")}
 
 
 def test_every_constraint_is_named_by_the_convention(migrated_db_url: str) -> None:
@@ -164,6 +164,7 @@ def test_env_py_renders_sqlite_changes_in_batch_mode(tmp_path: Path) -> None:
     upgrade(url)
     engine = open_engine(url)
     with engine.begin() as conn:  # a schema that drifted from the models by one column
+        conn.execute(text("DROP VIEW class_summary"))  # it reads that column (revision 0003)
         conn.execute(text("DROP INDEX ix_classes_automorphisms_key"))
         conn.execute(text("ALTER TABLE classes DROP COLUMN automorphisms_key"))
     versions = tmp_path / "versions"
@@ -181,7 +182,7 @@ def test_env_py_renders_sqlite_changes_in_batch_mode(tmp_path: Path) -> None:
     script = next(versions.glob("9999_*.py")).read_text()
     assert "with op.batch_alter_table('classes', schema=None) as batch_op:" in script
     assert "batch_op.add_column(sa.Column('automorphisms_key'" in script
-    assert "down_revision: str | None = '0002'" in script
+    assert "down_revision: str | None = '0003'" in script
 
 
 # --- from the committed older catalog -------------------------------------------------------
@@ -204,7 +205,7 @@ def test_older_catalog_opened_by_newer_code_names_the_migrate_command(old_catalo
         require_current(engine)
     message = str(caught.value)
     assert message == (
-        f"catalog {path} has schema revision 0001, older than 0002 which this zoo needs; "
+        f"catalog {path} has schema revision 0001, older than 0003 which this zoo needs; "
         f"upgrade it (no data is lost) with: zoo migrate --db '{path}'"
     )
     assert "\n" not in message
@@ -214,14 +215,14 @@ def test_older_catalog_opened_by_newer_code_names_the_migrate_command(old_catalo
 def test_upgrade_of_the_committed_catalog_keeps_every_row(old_catalog: str) -> None:
     engine = open_engine(old_catalog)
     before = table_rows(engine, CORE_TABLES)
-    assert upgrade(old_catalog) == SchemaChange("0001", "0002")
+    assert upgrade(old_catalog) == SchemaChange("0001", "0003")
     require_current(engine)
     after = table_rows(engine, CORE_TABLES)
     changed_info = {"schema_revision", "zoo_version"}
     assert [r for r in after["catalog_info"] if r[0] not in changed_info] == [
         r for r in before["catalog_info"] if r[0] not in changed_info
     ]
-    assert ("schema_revision", "0002") in after["catalog_info"]
+    assert ("schema_revision", "0003") in after["catalog_info"]
     for name in CORE_TABLES[1:]:
         if name != "catalog_info":
             assert after[name] == before[name], name
@@ -296,7 +297,7 @@ def test_old_data_upgrades_on_postgresql_too(old_catalog: str, postgres_url: str
             rows = [dict(r._mapping) for r in read.execute(select(old.tables[name]))]
             write.execute(new.tables[name].insert(), rows)
     before = table_rows(target, CORE_TABLES)
-    assert upgrade(postgres_url) == SchemaChange("0001", "0002")
+    assert upgrade(postgres_url) == SchemaChange("0001", "0003")
     after = table_rows(target, CORE_TABLES)
     for name in ("areas", "frames", "classes", "readings", "parameter_sets"):
         assert after[name] == before[name], name
@@ -315,7 +316,7 @@ def test_catalog_from_a_newer_zoo_is_refused_clearly(migrated_db_url: str) -> No
     with engine.begin() as conn:
         conn.execute(text("UPDATE alembic_version SET version_num = '0042'"))
     expected = (
-        f"has schema revision 0042, which zoo {__version__} does not know (its newest is 0002); "
+        f"has schema revision 0042, which zoo {__version__} does not know (its newest is 0003); "
         "it was written by a newer zoo: upgrade zoo (pip install -U zoo) to use it"
     )
     with pytest.raises(CatalogError, match=expected.replace("(", r"\(").replace(")", r"\)")):
@@ -367,15 +368,15 @@ def test_downgrade_and_upgrade_round_trip(old_catalog: str, postgres_url: str) -
                 )
             )
         core = table_rows(engine, CORE_TABLES[:1] + CORE_TABLES[2:])
-        assert downgrade(url, "0001") == SchemaChange("0002", "0001")
+        assert downgrade(url, "0001") == SchemaChange("0003", "0001")
         assert "seeds" not in inspect(engine).get_table_names()
         columns = {c["name"] for c in inspect(engine).get_columns("classes")}
         assert "automorphisms_key" not in columns
-        assert upgrade(url) == SchemaChange("0001", "0002")
+        assert upgrade(url) == SchemaChange("0001", "0003")
         assert table_rows(engine, CORE_TABLES[:1] + CORE_TABLES[2:]) == core
-        assert downgrade(url, "base") == SchemaChange("0002", None)
+        assert downgrade(url, "base") == SchemaChange("0003", None)
         assert set(inspect(engine).get_table_names()) <= {"alembic_version"}
-        assert upgrade(url) == SchemaChange(None, "0002")
+        assert upgrade(url) == SchemaChange(None, "0003")
         require_current(engine)
         engine.dispose()
 
@@ -388,8 +389,8 @@ def test_developers_alembic_ini_drives_the_same_environment(tmp_path: Path) -> N
     )
     command.upgrade(config, "head")
     engine = open_engine(resolve_location(str(path)))
-    assert current_revision(engine) == "0002"
+    assert current_revision(engine) == "0003"
     with engine.connect() as conn:
         info = dict(conn.execute(text("SELECT key, value FROM catalog_info")).all())
-    assert info["schema_revision"] == "0002"
+    assert info["schema_revision"] == "0003"
     engine.dispose()

@@ -32,7 +32,9 @@ from zoo.catalog.seeds import Seed, load_seed_directory
 from zoo.catalog.service import MAX_BUILD_AREA, AreaStats, Catalog
 from zoo.errors import CatalogError, ParameterError
 from zoo.storage import database
+from zoo.storage.buildlock import build_in_progress, build_lock
 from zoo.storage.convert import READING_ID_STRIDE, area_rows
+from zoo.storage.location import chosen_location
 from zoo.storage.repository import StoreConflict
 from zoo.version import __version__
 
@@ -42,6 +44,7 @@ __all__ = [
     "READING_ID_STRIDE",
     "BuildProgress",
     "BuildReport",
+    "area_span",
     "build_catalog",
     "check_build_bound",
     "default_jobs",
@@ -65,6 +68,25 @@ class BuildReport:
     stage_seconds: dict[str, float] = field(default_factory=dict)
     jobs: int = 1
     seeds: int = 0
+    #: Areas this build classified but found stored by another build when it came to write
+    #: them; the counts above leave them out.
+    stored_elsewhere: tuple[int, ...] = ()
+
+    def added_text(self) -> str:
+        """The areas this build stored: ``area 3`` or ``areas 1..2, 5..40``."""
+        return area_span(self.added)
+
+
+def area_span(areas: Sequence[int]) -> str:
+    """Areas as runs: ``area 3``, ``areas 1..2, 5..40`` (sorted, no gaps hidden)."""
+    runs: list[list[int]] = []
+    for area in sorted(areas):
+        if runs and area == runs[-1][1] + 1:
+            runs[-1][1] = area
+        else:
+            runs.append([area, area])
+    text = ", ".join(str(a) if a == b else f"{a}..{b}" for a, b in runs)
+    return f"area {text}" if len(areas) == 1 else f"areas {text}"
 
 
 class BuildProgress(Protocol):
@@ -91,6 +113,24 @@ def build_catalog(
 ) -> BuildReport:
     """Store every area 1..max_area that is not stored yet; one transaction per area.
 
+    Holds the catalog's build lock while it runs (``zoo.storage.buildlock``), so that readers
+    know a build is in progress and answer from what is complete instead of building too.
+    """
+    with build_lock(catalog.engine):
+        return _build_catalog(catalog, max_area, jobs, progress, seeds=seeds, cluster=cluster)
+
+
+def _build_catalog(
+    catalog: Catalog,
+    max_area: int,
+    jobs: int = 1,
+    progress: BuildProgress | None = None,
+    *,
+    seeds: Sequence[Seed] | None = None,
+    cluster: str | None = None,
+) -> BuildReport:
+    """The build itself, under the build lock (``build_catalog``).
+
     ``jobs`` worker processes classify areas (nauty included); this process writes them in
     increasing order. Areas already complete are never rewritten. ``seeds`` defaults to the
     shipped seeds_data/; each is attached to its class when its area is stored. Raises
@@ -115,6 +155,7 @@ def build_catalog(
     stage = {"classify_algebra": 0.0, "classify_canonical": 0.0, "write": 0.0}
     totals = {"parameter_sets": 0, "readings": 0, "classes": 0, "frames": 0, "forms": 0}
     added: list[int] = []
+    elsewhere: list[int] = []
     if progress is not None:
         progress.started(todo, sum(parameter_set_count(a) for a in todo))
     seeds_by_area: dict[int, list[Seed]] = {}
@@ -129,7 +170,8 @@ def build_catalog(
         stage["classify_canonical"] += result.seconds.get("canonical", 0.0)
         stage["write"] += write_seconds
         if not wrote:
-            continue  # a concurrent build stored it first
+            elsewhere.append(result.area)  # a concurrent build stored it first
+            continue
         added.append(result.area)
         totals["parameter_sets"] += result.parameter_set_count
         totals["readings"] += result.reading_count
@@ -156,6 +198,7 @@ def build_catalog(
         canonical_forms=totals["forms"],
         wall_seconds=time.perf_counter() - started,
         stage_seconds=stage,
+        stored_elsewhere=tuple(elsewhere),
         jobs=jobs,
         seeds=len(seed_list),
     )
@@ -267,15 +310,26 @@ def ensure_catalog(
       ``build_target`` equals ``max_area``) and it was interrupted before reaching it: the
       main job resumes where Ctrl-C stopped it.
 
+    A named catalog (``location`` or ``$ZOO_CATALOG``) that does not exist is a
+    ``CatalogError``: only the default location is built on first use.
+
     A catalog that a user built to another bound is never extended here (that is
-    ``zoo build``'s decision); queries beyond it get the completeness warning instead.
+    ``zoo build``'s decision); queries beyond it get the completeness warning instead. Nor is
+    one that another process is building now: the reader answers from what is complete
+    (issue 8), and the other build's target stays as it set it.
     """
     bound = catalog_service.DEFAULT_MAX_AREA if max_area is None else max_area
     check_build_bound(bound)
-    url = database.resolve_location(location)
+    url = database.resolve_location(catalog_service.require_named_catalog(location))
+    if not database.catalog_exists(url) and chosen_location(location):
+        # Only the default catalog is built on first use; a named one that is not there is
+        # most likely mistyped, and building it would put a catalog somewhere unexpected.
+        raise CatalogError(catalog_service.no_catalog_message(url))
     if database.catalog_exists(url):
         catalog = Catalog.open(location)
         try:
+            if build_in_progress(catalog.engine):
+                return catalog, None
             if not _is_unfinished_default_build(catalog, bound):
                 return catalog, None
         except BaseException:

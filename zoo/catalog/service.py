@@ -31,6 +31,8 @@ from zoo.core.entries import AreaStats, ClassEntry, FrameEntry, ReadingEntry, Se
 from zoo.core.params import ParameterSet, parse_params
 from zoo.errors import CatalogError, NotInCatalog, ParameterError
 from zoo.storage import database
+from zoo.storage.buildlock import build_in_progress
+from zoo.storage.location import CATALOG_ENV_VAR, chosen_location
 from zoo.storage.repository import Repository
 
 if TYPE_CHECKING:
@@ -83,6 +85,8 @@ class FindResult:
     #: Per entry, the readings (normal forms) holding a member that satisfies the query; empty
     #: when the query reads no reading or parameter-set field (every reading matches alike).
     matched: tuple[str | None, ...] = ()
+    #: Whether another process was building the catalog when the answer was read.
+    building: bool = False
 
     # A result is the sequence of its entries: ``result[0]``, ``len(result)``, ``for e in result``.
     def __len__(self) -> int:
@@ -170,6 +174,11 @@ class FindResult:
             )
         elif self.area_bound is None:
             note += " The query does not bound the area; larger areas are not in the answer."
+        if self.building:
+            note += (
+                " A build of this catalog is in progress: this answer holds the areas complete "
+                "when it was read; ask again later for more."
+            )
         return note
 
 
@@ -273,7 +282,7 @@ class Catalog:
         if file is None or self.complete_areas() or self.stats() or "encoding" in self.info():
             return False
         self.engine.dispose()
-        for suffix in ("", "-wal", "-shm", "-journal"):
+        for suffix in ("", "-wal", "-shm", "-journal", "-buildlock"):
             Path(f"{file}{suffix}").unlink(missing_ok=True)
         self.created = False
         return True
@@ -435,6 +444,7 @@ class Catalog:
             matched = reader.matched_readings(ids, node)
             complete_to = _complete_prefix(reader.complete_areas())
         return FindResult(
+            building=build_in_progress(self.engine),
             query=query,
             entries=tuple(entries),
             total=total,
@@ -451,7 +461,15 @@ class Catalog:
         from zoo.query.parser import parse_query, referenced_area_bound
 
         bound = referenced_area_bound(parse_query(query)) if query.strip() else None
-        result = FindResult(query, (), 0, self.complete_to(), bound, location=self.url)
+        result = FindResult(
+            query,
+            (),
+            0,
+            self.complete_to(),
+            bound,
+            location=self.url,
+            building=build_in_progress(self.engine),
+        )
         return result.completeness_note()
 
     def count(self, query: str, *, seed: str | None = None) -> int:
@@ -488,9 +506,44 @@ class Catalog:
 
 def describe_location(location: str | None = None) -> tuple[str, bool]:
     """How the catalog at ``location`` (``--db``, else $ZOO_CATALOG, else the default file) is
-    named to the user, and whether a catalog exists there; creates nothing but its folder."""
-    url = database.resolve_location(location)
-    return database.display_location(url), database.catalog_exists(url)
+    named to the user, and whether a catalog with content exists there; creates nothing but its
+    folder. A schema that nothing was ever stored in (``zoo migrate`` on a new file) and that no
+    build is filling counts as no catalog, so that ``zoo find`` says it builds one.
+    """
+    url = database.resolve_location(require_named_catalog(location))
+    shown = database.display_location(url)
+    if not database.catalog_exists(url):
+        if chosen_location(location):
+            raise CatalogError(no_catalog_message(url))
+        return shown, False
+    engine = database.open_engine(url)
+    try:
+        with Repository(engine).read() as reader:
+            empty = not reader.complete_areas() and "encoding" not in reader.info()
+        return shown, not empty or build_in_progress(engine)
+    finally:
+        engine.dispose()
+
+
+def require_named_catalog(location: str | None) -> str | None:
+    """``location`` unless it is given but empty (``--db ''``), which is an error: an empty
+    value must not quietly mean the default catalog to a command that would build it."""
+    if location is not None and not location.strip():
+        raise CatalogError(
+            "--db is empty; give a catalog file or database URL, or leave --db out for the "
+            "default catalog"
+        )
+    return location
+
+
+def no_catalog_message(url: str) -> str:
+    """The one line for a named catalog that does not exist, with the command that builds it."""
+    shown = database.display_location(url)
+    return (
+        f"no catalog at {shown}; a named catalog (--db or {CATALOG_ENV_VAR}) is built only by "
+        f"zoo build: zoo build --max-area {DEFAULT_MAX_AREA} --db {shlex.quote(shown)} (check "
+        "the spelling if you meant an existing one)"
+    )
 
 
 def migrate_catalog(location: str | None = None) -> tuple[str, str | None, str | None]:

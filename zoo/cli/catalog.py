@@ -166,30 +166,18 @@ class ProgressBar:
 def _build_summary(report: BuildReport) -> str:
     if not report.added:
         return f"Nothing to do: the catalog is already complete up to area {report.complete_to}."
+    from zoo.catalog.build import area_span
+
+    span = report.added_text()
+    if report.stored_elsewhere:
+        span += f" ({area_span(report.stored_elsewhere)} stored meanwhile by another build)"
     return (
-        f"Stored {area_runs(report.added)}: {report.parameter_sets:,} parameter sets, "
+        f"Stored {span}: {report.parameter_sets:,} parameter sets, "
         f"{report.readings:,} "
         f"readings, {report.classes:,} classes, {report.frames:,} frames "
         f"({report.canonical_forms:,} nauty canonical forms, all agreeing with the algebra) in "
         f"{report.wall_seconds:.1f} s. The catalog is complete up to area {report.complete_to}."
     )
-
-
-def area_runs(areas: Sequence[int]) -> str:
-    """The areas a build stored, as runs: ``area 7``, ``areas 1..11, 13..40``. Areas another
-    build stored meanwhile are left out, so the counts beside them are this build's own.
-
-    >>> area_runs([1, 2, 3, 5, 7, 8])
-    'areas 1..3, 5, 7..8'
-    """
-    runs: list[list[int]] = []
-    for area in sorted(areas):
-        if runs and area == runs[-1][1] + 1:
-            runs[-1][1] = area
-        else:
-            runs.append([area, area])
-    text = ", ".join(str(a) if a == b else f"{a}..{b}" for a, b in runs)
-    return f"area {text}" if len(areas) == 1 else f"areas {text}"
 
 
 def _run_build(build: Any) -> BuildReport:

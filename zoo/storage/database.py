@@ -19,9 +19,11 @@ import sqlite3
 from collections.abc import Iterator
 from contextlib import contextmanager
 from dataclasses import dataclass
+from functools import partial
 from importlib.resources import files
 from pathlib import Path
 from typing import Any
+from urllib.parse import quote
 
 from alembic import command
 from alembic.config import Config
@@ -112,6 +114,12 @@ def _normalised_url(value: str) -> URL:
     if url.drivername in ("postgresql", "postgres"):
         url = url.set(drivername="postgresql+psycopg")
     backend = url.get_backend_name()
+    if backend == "postgresql" and not url.database:
+        # libpq would pick a database of its own (the user's name): never build there unasked.
+        raise CatalogError(
+            f"database URL {_without_password(value)!r} names no database; write it as "
+            "postgresql+psycopg://USER@HOST:PORT/DATABASE"
+        )
     if backend not in _SUPPORTED_BACKENDS:
         raise CatalogError(
             f"database URL {_display_url(url)!r} uses {backend}; zoo stores catalogs in SQLite "
@@ -233,10 +241,12 @@ def open_engine(url: str, *, migrating: bool = False, read_only: bool = False) -
     if read_only:
         _refuse_writes(engine)
     try:
-        with engine.connect():
-            pass
+        _check_readable(engine)
     except DBAPIError as exc:
         engine.dispose()
+        fallback = None if migrating else _read_only_engine(parsed, exc)
+        if fallback is not None:
+            return fallback
         raise CatalogError(
             f"cannot open catalog database {display_location(parsed)!r}: {_first_line(exc)}; "
             "check the path or URL given by --db or ZOO_CATALOG"
@@ -259,6 +269,45 @@ def _refuse_writes(engine: Engine) -> None:
             cursor.close()
         if backend != "sqlite":
             dbapi_connection.commit()  # psycopg opened a transaction for the SET
+
+
+def _check_readable(engine: Engine) -> None:
+    with engine.connect() as connection:
+        if connection.dialect.name == "sqlite":
+            # A WAL catalog in a read-only directory connects, then fails at its first read
+            # (the -shm side file cannot be made): read once here to find out.
+            connection.exec_driver_sql("SELECT count(*) FROM sqlite_master").scalar()
+
+
+def _read_only_engine(parsed: URL, exc: BaseException) -> Engine | None:
+    """A read-only engine for a SQLite catalog that cannot be opened for writing, or None.
+
+    A catalog file without write permission, or in a directory where the WAL side files
+    cannot be created, is opened with ``mode=ro``, else as ``immutable`` (no side files at
+    all: nobody can write there, so nothing changes under the reader). Writes then fail and
+    ``write_transaction`` says so in one line.
+    """
+    file = _sqlite_file(parsed)
+    reason = _first_line(exc).lower()
+    if file is None or not file.is_file():
+        return None
+    if "unable to open" not in reason and "readonly" not in reason and "read-only" not in reason:
+        return None
+    base = "file:" + quote(str(file.absolute()))
+    for query in ("mode=ro", "immutable=1"):
+        uri = f"{base}?{query}"
+        engine = create_engine(
+            parsed,
+            creator=partial(sqlite3.connect, uri, uri=True, timeout=SQLITE_BUSY_TIMEOUT_MS / 1000),
+        )
+        _configure_sqlite(engine, migrating=False)
+        try:
+            _check_readable(engine)
+        except DBAPIError:
+            engine.dispose()
+            continue
+        return engine
+    return None
 
 
 def _configure_sqlite(engine: Engine, *, migrating: bool) -> None:
@@ -311,7 +360,19 @@ def write_transaction(engine: Engine) -> Iterator[Connection]:
         except OperationalError as exc:
             if is_busy(exc):
                 raise busy_error(display_location(engine.url)) from None
+            if is_read_only(exc):
+                raise CatalogError(
+                    f"catalog {display_location(engine.url)} is read-only here "
+                    f"({_first_line(exc)}); it can be read but not built or changed: copy it "
+                    "to a writable folder, or build with --db pointing at one"
+                ) from None
             raise
+
+
+def is_read_only(exc: BaseException) -> bool:
+    """Whether a database error says that the catalog cannot be written here."""
+    text = str(getattr(exc, "orig", exc)).lower()
+    return "readonly database" in text or "read-only" in text or "unable to open database" in text
 
 
 def is_busy(exc: BaseException) -> bool:
