@@ -24,7 +24,9 @@ HEAD = "Latex[length=6pt,width=4.8pt]"
 #: Lines of side text per column (as in zoo.pictures.render_matplotlib).
 SIDE_ROWS = 40
 
-_SPECIALS = {
+#: The ten characters special to LaTeX and their text-mode spelling (LaTeX kernel commands only);
+#: the paper tables (zoo.publish.tables) escape with the same table.
+LATEX_SPECIALS = {
     "\\": r"\textbackslash{}",
     "{": r"\{",
     "}": r"\}",
@@ -35,6 +37,9 @@ _SPECIALS = {
     "$": r"\$",
     "^": r"\textasciicircum{}",
     "~": r"\textasciitilde{}",
+}
+_SPECIALS = {
+    **LATEX_SPECIALS,
     # Characters outside ASCII that the pictures use, as LaTeX kernel math, so that pdflatex
     # without Unicode fonts typesets them too.
     "\u2261": r"$\equiv$",

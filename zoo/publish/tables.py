@@ -15,6 +15,8 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 from fractions import Fraction
 
+from zoo.pictures.tikz import LATEX_SPECIALS
+
 #: The formats ``render`` knows.
 TABLE_FORMATS = ("markdown", "latex")
 
@@ -97,25 +99,12 @@ def markdown(table: PaperTable) -> str:
 
 # --- LaTeX -----------------------------------------------------------------------------------
 
-#: The ten characters special to LaTeX and their text-mode spelling (LaTeX kernel commands only).
-_LATEX_SPECIALS = {
-    "\\": r"\textbackslash{}",
-    "{": r"\{",
-    "}": r"\}",
-    "_": r"\_",
-    "%": r"\%",
-    "&": r"\&",
-    "#": r"\#",
-    "$": r"\$",
-    "^": r"\textasciicircum{}",
-    "~": r"\textasciitilde{}",
-}
-_LATEX_SPECIAL = re.compile(r"[\\{}_%&#$^~]")
+_LATEX_SPECIAL = re.compile("[" + re.escape("".join(LATEX_SPECIALS)) + "]")
 
 
 def latex_escape(text: str) -> str:
     """Plain text safe in LaTeX text mode (the ten special characters spelled out)."""
-    return _LATEX_SPECIAL.sub(lambda m: _LATEX_SPECIALS[m.group(0)], text)
+    return _LATEX_SPECIAL.sub(lambda m: LATEX_SPECIALS[m.group(0)], text)
 
 
 def _latex_cell(value: object) -> str:
