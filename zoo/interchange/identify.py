@@ -40,7 +40,7 @@ from collections import Counter, deque
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass, field, replace
 
-from zoo.core.net import MarkedGraph
+from zoo.core.net import CycloidNet, MarkedGraph
 from zoo.core.params import ParameterSet
 from zoo.core.structure import find_cycle, first_unreached
 from zoo.interchange.netfile import read_net_file
@@ -550,24 +550,8 @@ def _identify(net: PlaceTransitionNet, lookup: CatalogLookup | None) -> Identifi
         if mapping is None:
             continue
         transition_map, place_map = mapping
-        class_id, status = (
-            lookup(params, form.fingerprint)
-            if lookup is not None
-            else (None, "catalog not consulted")
-        )
-        return Identification(
-            source=net.source,
-            cycloid=True,
-            params=params,
-            class_id=class_id,
-            catalog=status,
-            synthesized=tuple(found),
-            observables=seen,
-            transition_map=tuple(
-                (graph.transitions[i], target.transitions[k]) for i, k in enumerate(transition_map)
-            ),
-            place_map=tuple((graph.places[j], target.places[k]) for j, k in enumerate(place_map)),
-            marking="initial",
+        return _cycloid_answer(
+            net, graph, target, form.fingerprint, lookup, found, seen, transition_map, place_map
         )
     # Not a cycloid system as drawn; perhaps a cycloid net in a reachable marking.
     later = _identify_reachable(net, graph, seen, lookup)
@@ -648,28 +632,17 @@ def _identify_reachable(
     if answers:
         _, params, reached = min(answers, key=lambda item: (item[0], item[1]))
         target = build_net(params)
-        class_id, status = (
-            lookup(params, canonical_form(target, marked=True).fingerprint)
-            if lookup is not None
-            else (None, "catalog not consulted")
-        )
-        return Identification(
-            source=net.source,
-            cycloid=True,
-            params=params,
-            class_id=class_id,
-            catalog=status,
-            synthesized=tuple(found),
-            observables=seen,
-            transition_map=tuple(
-                (graph.transitions[i], target.transitions[k])
-                for i, k in enumerate(reached.transition_map)
-            ),
-            place_map=tuple(
-                (graph.places[j], target.places[k]) for j, k in enumerate(reached.place_map)
-            ),
-            marking="initial" if not reached.firing else "reachable",
-            firing=tuple(graph.transitions[t] for t in reached.firing),
+        return _cycloid_answer(
+            net,
+            graph,
+            target,
+            canonical_form(target, marked=True).fingerprint,
+            lookup,
+            found,
+            seen,
+            reached.transition_map,
+            reached.place_map,
+            reached.firing,
         )
     if unreachable is None:
         return None
@@ -829,6 +802,41 @@ def _check_firing(graph: MarkedGraph, target: MarkedGraph, reached: _Reached) ->
             marking[j] += 1
     if tuple(marking) != graph.tokens:
         raise ArithmeticError("the firing sequence does not end in the file's marking")
+
+
+def _cycloid_answer(
+    net: PlaceTransitionNet,
+    graph: MarkedGraph,
+    target: CycloidNet,
+    fingerprint: str,
+    lookup: CatalogLookup | None,
+    found: Sequence[ParameterSet],
+    seen: Observables,
+    transition_map: Sequence[int],
+    place_map: Sequence[int],
+    firing: Sequence[int] = (),
+) -> Identification:
+    """The answer for a net that is the cycloid net ``target`` (its initial marking when
+    ``firing`` is empty, else reached by those transitions of the file's net)."""
+    params = target.params
+    class_id, status = (
+        lookup(params, fingerprint) if lookup is not None else (None, "catalog not consulted")
+    )
+    return Identification(
+        source=net.source,
+        cycloid=True,
+        params=params,
+        class_id=class_id,
+        catalog=status,
+        synthesized=tuple(found),
+        observables=seen,
+        transition_map=tuple(
+            (graph.transitions[i], target.transitions[k]) for i, k in enumerate(transition_map)
+        ),
+        place_map=tuple((graph.places[j], target.places[k]) for j, k in enumerate(place_map)),
+        marking="reachable" if firing else "initial",
+        firing=tuple(graph.transitions[t] for t in firing),
+    )
 
 
 def _refusal_reason(graph: MarkedGraph, seen: Observables, found: Sequence[ParameterSet]) -> str:
