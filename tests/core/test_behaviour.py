@@ -135,3 +135,80 @@ def test_a_minimal_recurrent_sequence_fires_each_transition_once_without_repeati
             seen.add(tuple(marking))
         assert sorted(fired) == list(range(p.area)) and tuple(marking) == net.tokens
         assert len(seen) == p.area
+
+
+def test_the_fast_read_back_agrees_with_the_synthesized_net() -> None:
+    # own_net_read_back decides with the known transition names what synthesized_net computes
+    # from the unlabelled graph; nauty's canonical forms are the reference for "gives back the
+    # class's own net".
+    from zoo.core.behaviour import own_net_read_back, synthesized_net
+    from zoo.core.canonical import canonical_form
+    from zoo.core.net import build_net
+    from zoo.core.reachability import reachability_graph
+
+    checked = given_back = 0
+    for p in class_labels(22):
+        if min(p.alpha, p.beta) == 1 or reachable_state_count(p) > 3_000:
+            continue
+        net = build_net(p)
+        synthesized = synthesized_net(state_graph(p))
+        expected = (
+            synthesized is not None
+            and canonical_form(synthesized.net).fingerprint == canonical_form(net).fingerprint
+        )
+        assert own_net_read_back(net, reachability_graph(net)) is expected, p
+        checked += 1
+        given_back += expected
+    assert checked > 250 and given_back == checked  # no cycloid up to 22 hides its net
+
+
+def test_the_fast_read_back_refuses_a_net_with_a_place_too_many() -> None:
+    # An implied place (a copy of the path t -> u -> v with its tokens) leaves the state graph
+    # unchanged, so the net read back from it lacks that place: not the net itself.
+    from zoo.core.behaviour import own_net_read_back
+    from zoo.core.net import MarkedGraph, build_net
+    from zoo.core.reachability import reachability_graph
+
+    net = build_net(C(3, 3, 1, 3))
+    first = 0
+    second = next(j for j in range(net.place_count) if net.pre[j] == net.post[first])
+    extra = MarkedGraph(
+        transitions=net.transitions,
+        places=(*net.places, "implied"),
+        pre=(*net.pre, net.pre[first]),
+        post=(*net.post, net.post[second]),
+        tokens=(*net.tokens, net.tokens[first] + net.tokens[second]),
+    )
+    assert own_net_read_back(net, reachability_graph(net)) is True
+    assert reachability_graph(extra).state_count == reachability_graph(net).state_count
+    assert own_net_read_back(extra, reachability_graph(extra)) is False
+
+
+def test_behaviour_keys_agree_with_networkx_on_every_pair_of_small_classes() -> None:
+    # Equal keys exactly when the reachability graphs are isomorphic (networkx VF2, initial
+    # marking to initial marking): the keys the catalog stores.
+    from zoo.core.behaviour import behaviour_key
+    from zoo.core.canonical import canonical_form
+    from zoo.core.net import build_net
+
+    by_size: dict[tuple[int, int], list[C]] = {}
+    for p in class_labels(12):
+        by_size.setdefault((reachable_state_count(p), state_arc_count(p)), []).append(p)
+    keys = {
+        p: behaviour_key(p, canonical_form(build_net(p)).fingerprint)
+        for group in by_size.values()
+        for p in group
+    }
+    same = 0
+    for group in by_size.values():
+        for p, q in combinations(group, 2):
+            key_p, key_q = keys[p], keys[q]
+            assert key_p is not None and key_q is not None
+            reference = nx.is_isomorphic(
+                as_networkx(state_graph(p)),
+                as_networkx(state_graph(q)),
+                node_match=lambda a, b: a["start"] == b["start"],
+            )
+            assert (key_p.key == key_q.key) is reference, (p, q)
+            same += reference
+    assert same > 20

@@ -40,8 +40,8 @@ from zoo.query.parser import (
 DOCS = Path(__file__).resolve().parents[2] / "docs" / "query-language.md"
 FIELD_LIST = (  # issue 8, one vocabulary: the counts are reading_count and member_count
     "area, loop (cyc), states, state_arcs, automorphisms, net_automorphisms, tokens, enabled, "
-    "semi_enabled, cycle_time, group_d1, cyclic, iteration, reading_count (readings), "
-    "member_count (members), alpha (α), "
+    "semi_enabled, cycle_time, group_d1, cyclic, iteration, iterates, behaviour_count, "
+    "reading_count (readings), member_count (members), alpha (α), "
     "beta (β), processes, regular, slowness, forward_count, forward_length, forward_tokens, "
     "backward_count, backward_length, backward_tokens, gamma (γ), delta (δ)"
 )

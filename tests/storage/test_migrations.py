@@ -24,6 +24,7 @@ from alembic.runtime.migration import MigrationContext
 from sqlalchemy import Engine, MetaData, inspect, select, text
 
 from zoo import __version__
+from zoo.core.params import ParameterSet
 from zoo.errors import CatalogError
 from zoo.storage.database import (
     SchemaChange,
@@ -45,6 +46,21 @@ OLD_CATALOG = Path(__file__).parents[1] / "data" / "catalog-r0001.sqlite3"
 CORE_TABLES = ("areas", "catalog_info", "classes", "frames", "parameter_sets", "readings")
 
 
+#: Columns added by later revisions to tables the committed catalog already holds; they are
+#: checked on their own below.
+ADDED_COLUMNS = frozenset(
+    {
+        "automorphisms_key",  # 0002
+        "iterates",  # 0004
+        "behaviour_key",
+        "behaviour_evidence",
+        "behaviour_id",
+        "behaviour_count",
+        "behaviour_done",
+    }
+)
+
+
 def table_rows(engine: Engine, tables: tuple[str, ...]) -> dict[str, list[tuple[object, ...]]]:
     """Every row of the given tables, in primary key order, as plain tuples of text."""
     reflected = MetaData()
@@ -53,7 +69,7 @@ def table_rows(engine: Engine, tables: tuple[str, ...]) -> dict[str, list[tuple[
     with engine.connect() as conn:
         for name in tables:
             table = reflected.tables[name]
-            columns = sorted(c.name for c in table.columns if c.name != "automorphisms_key")
+            columns = sorted(c.name for c in table.columns if c.name not in ADDED_COLUMNS)
             order = [table.c[c.name] for c in table.primary_key.columns]
             rows = conn.execute(select(*(table.c[c] for c in columns)).order_by(*order))
             result[name] = [tuple(str(v) for v in row) for row in rows]
@@ -72,8 +88,8 @@ def old_catalog(tmp_path: Path) -> str:
 
 
 def test_revisions_form_one_linear_chain() -> None:
-    assert known_revisions() == ("0001", "0002", "0003")
-    assert head_revision() == "0003"
+    assert known_revisions() == ("0001", "0002", "0003", "0004")
+    assert head_revision() == "0004"
 
 
 def test_the_migrations_are_shipped_inside_the_package() -> None:
@@ -89,7 +105,7 @@ def test_the_migrations_are_shipped_inside_the_package() -> None:
 
 
 def test_upgrade_from_empty_creates_the_schema_of_the_models(db_url: str) -> None:
-    assert upgrade(db_url) == SchemaChange(None, "0003")
+    assert upgrade(db_url) == SchemaChange(None, "0004")
     engine = open_engine(db_url)
     require_current(engine)
     with engine.connect() as conn:
@@ -97,7 +113,7 @@ def test_upgrade_from_empty_creates_the_schema_of_the_models(db_url: str) -> Non
         assert compare_metadata(context, Base.metadata) == []
         info = dict(conn.execute(text("SELECT key, value FROM catalog_info")).all())
     assert set(inspect(engine).get_table_names()) == {*CORE_TABLES, "seeds", "alembic_version"}
-    assert info["schema_revision"] == "0003"
+    assert info["schema_revision"] == "0004"
     assert info["zoo_version"] == info["created_by"] == __version__
     engine.dispose()
 
@@ -115,7 +131,7 @@ def test_upgrade_of_a_current_catalog_is_a_no_op(migrated_db_url: str) -> None:
         conn.execute(text("INSERT INTO catalog_info (key, value) VALUES ('note', 'kept')"))
     before = table_rows(engine, ("catalog_info",))
     change = upgrade(migrated_db_url)
-    assert change == SchemaChange("0003", "0003") and not change.changed
+    assert change == SchemaChange("0004", "0004") and not change.changed
     assert table_rows(engine, ("catalog_info",)) == before
     engine.dispose()
 
@@ -136,7 +152,7 @@ def test_two_zoos_upgrading_at_once_do_not_collide(db_url: str) -> None:
     for thread in threads:
         thread.join(timeout=60)
     assert len(results) == 2
-    assert set(results) == {SchemaChange(None, "0003"), SchemaChange("0003", "0003")}
+    assert set(results) == {SchemaChange(None, "0004"), SchemaChange("0004", "0004")}
 
 
 def test_every_constraint_is_named_by_the_convention(migrated_db_url: str) -> None:
@@ -182,7 +198,7 @@ def test_env_py_renders_sqlite_changes_in_batch_mode(tmp_path: Path) -> None:
     script = next(versions.glob("9999_*.py")).read_text()
     assert "with op.batch_alter_table('classes', schema=None) as batch_op:" in script
     assert "batch_op.add_column(sa.Column('automorphisms_key'" in script
-    assert "down_revision: str | None = '0003'" in script
+    assert "down_revision: str | None = '0004'" in script
 
 
 # --- from the committed older catalog -------------------------------------------------------
@@ -205,7 +221,7 @@ def test_older_catalog_opened_by_newer_code_names_the_migrate_command(old_catalo
         require_current(engine)
     message = str(caught.value)
     assert message == (
-        f"catalog {path} has schema revision 0001, older than 0003 which this zoo needs; "
+        f"catalog {path} has schema revision 0001, older than 0004 which this zoo needs; "
         f"upgrade it (no data is lost) with: zoo migrate --db '{path}'"
     )
     assert "\n" not in message
@@ -215,14 +231,14 @@ def test_older_catalog_opened_by_newer_code_names_the_migrate_command(old_catalo
 def test_upgrade_of_the_committed_catalog_keeps_every_row(old_catalog: str) -> None:
     engine = open_engine(old_catalog)
     before = table_rows(engine, CORE_TABLES)
-    assert upgrade(old_catalog) == SchemaChange("0001", "0003")
+    assert upgrade(old_catalog) == SchemaChange("0001", "0004")
     require_current(engine)
     after = table_rows(engine, CORE_TABLES)
     changed_info = {"schema_revision", "zoo_version"}
     assert [r for r in after["catalog_info"] if r[0] not in changed_info] == [
         r for r in before["catalog_info"] if r[0] not in changed_info
     ]
-    assert ("schema_revision", "0003") in after["catalog_info"]
+    assert ("schema_revision", "0004") in after["catalog_info"]
     for name in CORE_TABLES[1:]:
         if name != "catalog_info":
             assert after[name] == before[name], name
@@ -232,6 +248,21 @@ def test_upgrade_of_the_committed_catalog_keeps_every_row(old_catalog: str) -> N
             rows = conn.execute(text(f"SELECT automorphisms, automorphisms_key FROM {table}"))
             for automorphisms, key in rows:
                 assert key == sortable_key(int(automorphisms))
+        # Revision 0004: iteration counts from the labels (the n-fold iterations found by
+        # building C(α, β, nγ, nδ), zoo.core.iterations), behaviour left to the next build.
+        from zoo.core.iterations import class_iteration_bases
+
+        rows = conn.execute(
+            text(
+                "SELECT label_alpha, label_beta, label_gamma, label_delta, iterates, "
+                "behaviour_id, behaviour_count FROM classes"
+            )
+        ).all()
+        assert any(row[4] for row in rows)
+        for *label, iterates, behaviour_id, behaviour_count in rows:
+            assert iterates == len(class_iteration_bases(ParameterSet(*label)))
+            assert behaviour_id is None and behaviour_count is None
+        assert not conn.execute(text("SELECT count(*) FROM areas WHERE behaviour_done")).scalar()
         # The new indexes serve the query paths.
         plan = conn.exec_driver_sql(
             "EXPLAIN QUERY PLAN SELECT id FROM classes WHERE area = 4 AND loop = 2"
@@ -297,7 +328,7 @@ def test_old_data_upgrades_on_postgresql_too(old_catalog: str, postgres_url: str
             rows = [dict(r._mapping) for r in read.execute(select(old.tables[name]))]
             write.execute(new.tables[name].insert(), rows)
     before = table_rows(target, CORE_TABLES)
-    assert upgrade(postgres_url) == SchemaChange("0001", "0003")
+    assert upgrade(postgres_url) == SchemaChange("0001", "0004")
     after = table_rows(target, CORE_TABLES)
     for name in ("areas", "frames", "classes", "readings", "parameter_sets"):
         assert after[name] == before[name], name
@@ -316,7 +347,7 @@ def test_catalog_from_a_newer_zoo_is_refused_clearly(migrated_db_url: str) -> No
     with engine.begin() as conn:
         conn.execute(text("UPDATE alembic_version SET version_num = '0042'"))
     expected = (
-        f"has schema revision 0042, which zoo {__version__} does not know (its newest is 0003); "
+        f"has schema revision 0042, which zoo {__version__} does not know (its newest is 0004); "
         "it was written by a newer zoo: upgrade zoo (pip install -U zoo) to use it"
     )
     with pytest.raises(CatalogError, match=expected.replace("(", r"\(").replace(")", r"\)")):
@@ -368,15 +399,15 @@ def test_downgrade_and_upgrade_round_trip(old_catalog: str, postgres_url: str) -
                 )
             )
         core = table_rows(engine, CORE_TABLES[:1] + CORE_TABLES[2:])
-        assert downgrade(url, "0001") == SchemaChange("0003", "0001")
+        assert downgrade(url, "0001") == SchemaChange("0004", "0001")
         assert "seeds" not in inspect(engine).get_table_names()
         columns = {c["name"] for c in inspect(engine).get_columns("classes")}
         assert "automorphisms_key" not in columns
-        assert upgrade(url) == SchemaChange("0001", "0003")
+        assert upgrade(url) == SchemaChange("0001", "0004")
         assert table_rows(engine, CORE_TABLES[:1] + CORE_TABLES[2:]) == core
-        assert downgrade(url, "base") == SchemaChange("0003", None)
+        assert downgrade(url, "base") == SchemaChange("0004", None)
         assert set(inspect(engine).get_table_names()) <= {"alembic_version"}
-        assert upgrade(url) == SchemaChange(None, "0003")
+        assert upgrade(url) == SchemaChange(None, "0004")
         require_current(engine)
         engine.dispose()
 
@@ -389,8 +420,8 @@ def test_developers_alembic_ini_drives_the_same_environment(tmp_path: Path) -> N
     )
     command.upgrade(config, "head")
     engine = open_engine(resolve_location(str(path)))
-    assert current_revision(engine) == "0003"
+    assert current_revision(engine) == "0004"
     with engine.connect() as conn:
         info = dict(conn.execute(text("SELECT key, value FROM catalog_info")).all())
-    assert info["schema_revision"] == "0003"
+    assert info["schema_revision"] == "0004"
     engine.dispose()

@@ -19,6 +19,7 @@ from sqlalchemy.exc import IntegrityError, OperationalError
 from sqlalchemy.orm import Session
 
 from zoo.core import algebra, invariants
+from zoo.core.iterations import class_iteration_bases
 from zoo.core.params import ParameterSet
 from zoo.errors import CatalogError
 from zoo.storage.database import (
@@ -84,6 +85,7 @@ def class_row(p: ParameterSet, rank: int, frame_id: str) -> ClassRecord:
         cycle_time_den=cycle_time.denominator,
         group_d1=algebra.transition_group(p)[0],
         iteration=algebra.iteration_depth(p),
+        iterates=len(class_iteration_bases(p)),
         reading_count=1,
         member_count=1,
     )

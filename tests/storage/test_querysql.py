@@ -37,6 +37,7 @@ from tests.query.test_fuzz import grammar_text, mutated_text
 from tests.query_trees import query_trees
 from zoo.catalog.enumeration import iter_parameter_sets
 from zoo.core import algebra, invariants
+from zoo.core.iterations import class_iteration_bases
 from zoo.core.params import ParameterSet
 from zoo.errors import QuerySyntaxError, ZooError
 from zoo.query.fields import FIELDS, Field, FieldType, Level
@@ -151,6 +152,12 @@ def build_catalog_data() -> CatalogData:
                 "group_d1": algebra.transition_group(label)[0],
                 "cyclic": algebra.transition_group(label)[0] == 1,
                 "iteration": algebra.iteration_depth(label),
+                "iterates": len(class_iteration_bases(label)),
+                # Stand-in counts (this test compares SQL with Python, not the mathematics):
+                # empty above 10^4 states, as a build leaves them.
+                "behaviour_count": None
+                if invariants.reachable_state_count(label) > 10_000
+                else 1 + (min(label.alpha, label.beta) == 1),
                 "reading_count": len(readings),
                 "member_count": len(members),
             }
@@ -177,6 +184,8 @@ def build_catalog_data() -> CatalogData:
                     "cycle_time_den": cycle_time.denominator,
                     "group_d1": class_values["group_d1"],
                     "iteration": class_values["iteration"],
+                    "iterates": class_values["iterates"],
+                    "behaviour_count": class_values["behaviour_count"],
                     "reading_count": len(readings),
                     "member_count": len(members),
                 }
@@ -294,6 +303,8 @@ def holds(node: Node, member: dict[str, Value]) -> bool:
     if isinstance(node, Not):
         return not holds(node.operand, member)
     value = member[node.field]
+    if value is None:
+        value = 0  # an empty value compares as 0 (docs/query-language.md)
     if isinstance(node, Comparison):
         return _PYTHON_OPERATORS[node.op](value, node.value)
     if isinstance(node, Range):
@@ -327,7 +338,7 @@ def sqlite_engine(tmp_path_factory: pytest.TempPathFactory) -> Iterator[Engine]:
 
 
 def _stored_values(name: str) -> list[Value]:
-    return sorted({m[name] for ms in DATA.members.values() for m in ms})
+    return sorted({m[name] for ms in DATA.members.values() for m in ms if m[name] is not None})
 
 
 def values_for(field: Field) -> st.SearchStrategy[Value]:

@@ -25,6 +25,7 @@ from dataclasses import dataclass, field
 from typing import Protocol
 
 from zoo.catalog import service as catalog_service
+from zoo.catalog.behaviour import name_behaviour
 from zoo.catalog.classify import AreaClassification, classify_area
 from zoo.catalog.cluster import ClusterClassifier, check_cluster_address
 from zoo.catalog.enumeration import parameter_set_count
@@ -152,7 +153,10 @@ def _build_catalog(
     done = set(catalog.complete_areas())
     todo = [a for a in range(1, max_area + 1) if a not in done]
     _sync_seeds(catalog, seed_list)
-    stage = {"classify_algebra": 0.0, "classify_canonical": 0.0, "write": 0.0}
+    stage = {"classify_algebra": 0.0, "classify_canonical": 0.0, "behaviour": 0.0, "write": 0.0}
+    tick = time.perf_counter()
+    name_behaviour(catalog)  # areas stored by an older zoo, or left unnamed by a stopped build
+    stage["behaviour"] += time.perf_counter() - tick
     totals = {"parameter_sets": 0, "readings": 0, "classes": 0, "frames": 0, "forms": 0}
     added: list[int] = []
     elsewhere: list[int] = []
@@ -168,7 +172,11 @@ def _build_catalog(
         write_seconds = time.perf_counter() - write_started
         stage["classify_algebra"] += result.seconds.get("algebra", 0.0)
         stage["classify_canonical"] += result.seconds.get("canonical", 0.0)
+        stage["behaviour"] += result.seconds.get("behaviour", 0.0)
         stage["write"] += write_seconds
+        tick = time.perf_counter()
+        name_behaviour(catalog)  # this area's classes, once every area below is stored
+        stage["behaviour"] += time.perf_counter() - tick
         if not wrote:
             elsewhere.append(result.area)  # a concurrent build stored it first
             continue

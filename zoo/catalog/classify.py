@@ -124,6 +124,10 @@ class ClassSummary:
     iteration: int
     #: Every class-level invariant of the registry (zoo.core.registry), by name: what is stored.
     values: Mapping[str, object] = field(default_factory=dict)
+    #: The behaviour key and its evidence (zoo.core.behaviour.behaviour_key); None above the
+    #: state bound. The behaviour identifier is given when the area is stored.
+    behaviour_key: str | None = None
+    behaviour_evidence: str | None = None
 
     @property
     def label(self) -> ParameterSet:
@@ -319,13 +323,21 @@ def classify_area(
     *,
     system_form: FormFunction | None = None,
     net_form: FormFunction | None = None,
+    behaviour_limit: int | None = None,
 ) -> AreaClassification:
     """Classify every parameter set of one area and confirm the result with nauty.
 
     ``system_form`` and ``net_form`` default to those of ``zoo.core.canonical``; each returns an
     object with ``fingerprint`` and ``automorphisms``. Raises ClassificationDisagreement when
-    the algebraic partition and the canonical forms do not agree.
+    the algebraic partition and the canonical forms do not agree. Classes with at most
+    ``behaviour_limit`` reachable states (default ``BEHAVIOUR_STATE_LIMIT``, 0 for none) get
+    their behaviour key.
     """
+    from zoo.core.behaviour import BEHAVIOUR_STATE_LIMIT, behaviour_key
+
+    if behaviour_limit is None:
+        behaviour_limit = BEHAVIOUR_STATE_LIMIT
+    behaviour_seconds = 0.0
     if system_form is None or net_form is None:
         default_system, default_net = _canonical_functions()
         system_form = system_form or default_system
@@ -452,7 +464,11 @@ def classify_area(
             "automorphisms": int(form.automorphisms),  # nauty
             "reading_count": len(readings),
             "member_count": sum(len(r) for r in readings),
+            "behaviour_count": None,  # counted over the catalog when the area is stored
         }
+        tick = time.perf_counter()
+        behaviour = behaviour_key(p, form.fingerprint, behaviour_limit) if behaviour_limit else None
+        behaviour_seconds += time.perf_counter() - tick
         classes.append(
             ClassSummary(
                 id=class_identifier(area, index + 1),
@@ -476,6 +492,8 @@ def classify_area(
                 group_d1=cast(int, values["group_d1"]),
                 iteration=cast(int, values["iteration"]),
                 values=values,
+                behaviour_key=behaviour.key if behaviour else None,
+                behaviour_evidence=behaviour.evidence if behaviour else None,
             )
         )
     finished = time.perf_counter()
@@ -486,8 +504,9 @@ def classify_area(
         frames=tuple(frames),
         canonical_forms=calls,
         seconds={
-            "algebra": algebra_done - started + finished - nauty_done,
+            "algebra": algebra_done - started + finished - nauty_done - behaviour_seconds,
             "canonical": nauty_done - algebra_done,
+            "behaviour": behaviour_seconds,
         },
     )
 

@@ -21,9 +21,11 @@ from zoo.core.params import ParameterSet
 from zoo.errors import NotInCatalog
 
 __all__ = [
+    "BEHAVIOUR_PREFIX",
     "CLASS_PREFIX",
     "FRAME_PREFIX",
     "Identifier",
+    "behaviour_identifier",
     "class_identifier",
     "frame_identifier",
     "label",
@@ -34,6 +36,19 @@ __all__ = [
 
 CLASS_PREFIX = "CY"
 FRAME_PREFIX = "FR"
+#: Behaviour classes are named after their first class: ``BE{area}-{rank}`` for ``CY{area}-{rank}``
+#: (docs/theory/behaviour.md).
+BEHAVIOUR_PREFIX = "BE"
+
+
+def behaviour_identifier(class_id: str) -> str:
+    """The identifier of the behaviour class whose first class is ``class_id``.
+
+    >>> behaviour_identifier("CY5-1")
+    'BE5-1'
+    """
+    return BEHAVIOUR_PREFIX + class_id[len(CLASS_PREFIX) :]
+
 
 IdentifierKind = Literal["class", "frame"]
 

@@ -313,6 +313,17 @@ class Catalog:
         """The largest N such that areas 1..N are all stored completely (0 when empty)."""
         return _complete_prefix(self.complete_areas())
 
+    def behaviour_complete_to(self) -> int:
+        """The largest N such that the classes of areas 1..N all have their behaviour
+        identifiers: a behaviour class of s states is listed completely when N >= s."""
+        with self.repository.read() as reader:
+            return _complete_prefix(reader.behaviour_done_areas())
+
+    def behaviour_members(self, behaviour_id: str) -> list[str]:
+        """The stored classes of a behaviour class (``BE...``), in catalog order."""
+        with self.repository.read() as reader:
+            return reader.behaviour_members(behaviour_id)
+
     def info(self) -> dict[str, str]:
         """The catalog_info table: versions, encoding, creation time."""
         with self.repository.read() as reader:

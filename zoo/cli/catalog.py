@@ -562,6 +562,8 @@ def show_entry(ref: str, fmt: str, db: str | None) -> None:
 
 
 def _number_text(value: object) -> str:
+    if value is None:
+        return "-"
     if isinstance(value, bool):
         return "yes" if value else "no"
     if isinstance(value, int):
@@ -631,12 +633,39 @@ def _print_entry_table(report: dict[str, Any]) -> None:
         f"[bold]Frame[/bold] {frame['id']} {frame['label']} (net automorphisms "
         f"{_number_text(frame['net_automorphisms'])}); other classes on it: {others}"
     )
+    _print_relations(console, report)
     if report["seeds"]:
         console.print("[bold]Seeds[/bold]")
         for s in report["seeds"]:
             console.print(f"  {s['name']}: {s['description']} ({s['params']})")
     console.print(f"The catalog is complete up to area {report['complete_to']}.")
     console.print(f"[bold]Cite as[/bold]: {report['citation']}")
+
+
+def _print_relations(console: Any, report: dict[str, Any]) -> None:
+    """Iteration links and the behaviour class of an entry (docs/theory/iterations.md,
+    docs/theory/behaviour.md)."""
+
+    def links(items: list[dict[str, Any]]) -> str:
+        return ", ".join(f"{link['id']} (n = {link['n']})" for link in items) or "none"
+
+    console.print(f"[bold]Iteration of[/bold]: {links(report['iteration_of'])}")
+    console.print(
+        f"[bold]Iterations[/bold] up to area {report['complete_to']}: {links(report['iterations'])}"
+    )
+    behaviour = report["behaviour"]
+    if behaviour["id"] is None:
+        bound = behaviour["state_bound"]
+        reason = f"more than {bound:,} reachable states" if bound else "not computed yet"
+        console.print(f"[bold]Behaviour[/bold]: not decided ({reason})")
+        return
+    others = [c for c in behaviour["classes"] if c != report["id"]]
+    listed = ", ".join(others) or "none"
+    note = "" if behaviour["complete"] else " (so far: the catalog does not reach its state count)"
+    console.print(
+        f"[bold]Behaviour[/bold] {behaviour['id']}: other classes that behave alike{note}: "
+        f"{listed}; {behaviour['evidence']}"
+    )
 
 
 def _print_frame_table(report: dict[str, Any]) -> None:

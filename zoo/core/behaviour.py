@@ -27,6 +27,7 @@ import hashlib
 from collections import Counter
 from collections.abc import Sequence
 from dataclasses import dataclass, fields
+from typing import Any
 
 from zoo.core.canonical import CanonicalForm, canonical_form, isomorphism_from_forms
 from zoo.core.net import MarkedGraph, build_net
@@ -454,15 +455,167 @@ def compare_behaviour(
     return BehaviourComparison(True, "explicit isomorphism of the state graphs", mapping)
 
 
+@dataclass(frozen=True)
+class BehaviourKey:
+    """What the catalog stores to group classes by behaviour (``behaviour_key``).
+
+    Two classes behave alike exactly when their keys are equal: ``cycle:s`` for a state graph
+    that is one directed cycle of s markings, ``net:FINGERPRINT`` (nauty, encoding v1) for the
+    net synthesized from the state graph. ``evidence`` says how the key was found.
+    """
+
+    key: str
+    states: int
+    evidence: str
+
+
+#: Evidence texts of ``BehaviourKey`` (docs/theory/behaviour.md).
+CYCLE_EVIDENCE = "the state graph is one directed cycle"
+OWN_NET_EVIDENCE = "the net read back from the state graph is the class's own net"
+SYNTHESIZED_EVIDENCE = "nauty fingerprint of the net read back from the state graph"
+
+
+def behaviour_key(
+    p: ParameterSet, class_fingerprint: str, limit: int = BEHAVIOUR_STATE_LIMIT
+) -> BehaviourKey | None:
+    """The behaviour key of the class of p (``class_fingerprint`` is its nauty fingerprint),
+    or None above ``limit`` states or when no net can be read back from the state graph.
+
+    A state graph that is one cycle (min(α, β) = 1) gets ``cycle:s``. Otherwise the net
+    synthesized from the state graph (``synthesized_net``) names the behaviour: isomorphic
+    state graphs give isomorphic synthesized nets, and the synthesized net's reachability graph
+    is the state graph again, so equal fingerprints mean equal behaviour (merges are still
+    checked with an explicit state map by the build). ``own_net_read_back`` decides the usual
+    case without nauty: the net read back is the class's own net, so its fingerprint is the
+    class's.
+
+    >>> behaviour_key(ParameterSet(1, 2, 1, 3), "unused").key
+    'cycle:5'
+    """
+    from zoo.core.invariants import reachable_state_count
+
+    states = reachable_state_count(p)
+    if states > limit:
+        return None
+    if min(p.alpha, p.beta) == 1:
+        return BehaviourKey(f"cycle:{states}", states, CYCLE_EVIDENCE)
+    net = build_net(p)
+    if own_net_read_back(net, reachability_graph(net, limit).arcs):
+        return BehaviourKey(f"net:{class_fingerprint}", states, OWN_NET_EVIDENCE)
+    graph = state_graph_of(net, limit)
+    synthesized = synthesized_net(graph)
+    if synthesized is None:
+        return None
+    fingerprint = canonical_form(synthesized.net).fingerprint
+    return BehaviourKey(f"net:{fingerprint}", states, SYNTHESIZED_EVIDENCE)
+
+
+def own_net_read_back(net: MarkedGraph, arcs: Any) -> bool:
+    """True when ``synthesized_net`` of the unlabelled state graph gives back ``net`` itself,
+    decided with the transition names that the arcs of its reachability graph carry
+    (``reachability_graph(net).arcs``: state 0 initial, every state numbered after the state
+    it was first reached from), in numpy, without nauty.
+
+    Two steps of ``synthesized_net``, each computed from the known labels:
+
+    * the arc labels: ``arc_labels`` joins the arcs of a transition a at states u and w when a
+      firing u → w of another transition keeps a enabled (in a marked graph a enabled at u
+      stays enabled, and the two firings close a square). The joins never mix transitions
+      (the markings of a strongly connected marked graph fix the firing counts up to whole
+      rounds), so the labels are the transitions exactly when every transition's arcs form
+      one joined group: as many groups as transitions.
+    * the places: with those labels, every pair (t, u) whose count difference c(t) − c(u)
+      takes at most two values over the reachable states is a place with m = −min tokens,
+      less the places implied by two others with no more tokens. The net is given back when
+      these are exactly its places, with its tokens.
+
+    ``tests/core/test_behaviour.py`` checks this against ``synthesized_net`` on small classes.
+    """
+    import numpy as np
+
+    transitions = net.transition_count
+    arcs = np.asarray(arcs, dtype=np.int64).reshape(-1, 3)
+    source, label, target = arcs[:, 0], arcs[:, 1], arcs[:, 2]
+    states = int(target.max()) + 1 if len(arcs) else 1
+    arc_at = np.full((states, transitions), -1, dtype=np.int64)
+    arc_at[source, label] = np.arange(len(arcs))
+    enabled = arc_at >= 0
+    # Joins: arc (u, b, w) joins the arcs of every a != b enabled at both u and w.
+    kept_enabled = enabled[source] & enabled[target]
+    kept_enabled[np.arange(len(arcs)), label] = False
+    arc_index, joined = np.nonzero(kept_enabled)
+    if (
+        _component_count(
+            len(arcs), arc_at[source[arc_index], joined], arc_at[target[arc_index], joined]
+        )
+        != transitions
+    ):
+        return False
+    # Firing counts of every state, along the arcs that discovered the states.
+    first_arc = np.full(states, -1, dtype=np.int64)
+    order = np.arange(len(arcs))[::-1]
+    first_arc[target[order]] = order  # the earliest arc into each state wins
+    # A count is at most the state's depth, below the state bound: int16 holds every
+    # difference, and halves the memory traffic of the ranges below.
+    counts = np.zeros((states, transitions), dtype=np.int16 if states < 2**15 else np.int64)
+    parents = source[first_arc[1:]].tolist()
+    fired = label[first_arc[1:]].tolist()
+    for state in range(1, states):
+        row = counts[state]
+        row[:] = counts[parents[state - 1]]
+        row[fired[state - 1]] += 1
+    low = np.empty((transitions, transitions), dtype=np.int64)
+    high = np.empty((transitions, transitions), dtype=np.int64)
+    by_transition = np.ascontiguousarray(counts.T)  # one row per transition: contiguous scans
+    for t in range(transitions):
+        difference = by_transition[t] - by_transition
+        low[t] = difference.min(axis=1)
+        high[t] = difference.max(axis=1)
+    region = high - low <= 1
+    np.fill_diagonal(region, False)
+    tokens = np.where(region, -low, np.iinfo(np.int64).max // 4)
+    via = (tokens[:, :, None] + tokens[None, :, :]).min(axis=1)  # best path t -> x -> u
+    kept = region & (via > tokens)
+    found = sorted(zip(*(a.tolist() for a in np.nonzero(kept)), strict=True))
+    found_places = sorted((t, u, int(tokens[t, u])) for t, u in found)
+    own_places = sorted(zip(net.pre, net.post, net.tokens, strict=True))
+    return found_places == own_places
+
+
+def _component_count(nodes: int, first: object, second: object) -> int:
+    """The number of connected components of a graph on ``nodes`` nodes with the given edges."""
+    import numpy as np
+
+    parent = np.arange(nodes)
+    a = np.asarray(first, dtype=np.int64)
+    b = np.asarray(second, dtype=np.int64)
+    while True:  # hook roots onto smaller roots, then jump pointers, until stable
+        ra, rb = parent[a], parent[b]
+        low = np.minimum(ra, rb)
+        before = parent.copy()
+        np.minimum.at(parent, ra, low)
+        np.minimum.at(parent, rb, low)
+        while True:
+            jumped = parent[parent]
+            if np.array_equal(jumped, parent):
+                break
+            parent = jumped
+        if np.array_equal(parent, before):
+            return int(np.count_nonzero(parent == np.arange(nodes)))
+
+
 __all__ = [
     "BEHAVIOUR_STATE_LIMIT",
     "BehaviourComparison",
+    "BehaviourKey",
     "BehaviourProfile",
     "StateGraph",
     "SynthesizedNet",
     "arc_labels",
     "synthesized_net",
+    "behaviour_key",
     "behaviour_profile",
+    "own_net_read_back",
     "check_state_map",
     "compare_behaviour",
     "cycle_order",

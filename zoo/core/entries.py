@@ -189,6 +189,10 @@ class ClassEntry:
         default_factory=lambda: _EMPTY
     )  # class and frame invariants by name
     seeds: tuple[SeedEntry, ...] = ()
+    #: The behaviour identifier (``BE{area}-{rank}``, docs/theory/behaviour.md) and how the
+    #: class's behaviour was found; None above the catalog's state bound.
+    behaviour_id: str | None = None
+    behaviour_evidence: str | None = None
 
     @property
     def rank(self) -> int:
@@ -230,6 +234,12 @@ class ClassEntry:
 
     def as_dict(self) -> dict[str, object]:
         """A JSON-ready dict: id, label, area, members first, then every invariant."""
+        values = json_values(_CLASS, self.invariant_values, self.area)
+        values["behaviour"] = {
+            "id": self.behaviour_id,
+            **values.get("behaviour", {}),
+            "evidence": self.behaviour_evidence,
+        }
         return {
             "id": self.id,
             "label": self.label,
@@ -237,7 +247,7 @@ class ClassEntry:
             "members": [str(p) for p in self.members],
             "frame_id": self.frame_id,
             "fingerprint": self.fingerprint,
-            **json_values(_CLASS, self.invariant_values, self.area),
+            **values,
             "readings": [r.as_dict() for r in self.readings],
             "seeds": [s.as_dict() for s in self.seeds],
         }

@@ -30,9 +30,10 @@ from dataclasses import dataclass
 from enum import Enum
 from fractions import Fraction
 from math import gcd
-from typing import Any
+from typing import Any, cast
 
 from zoo.core import algebra, invariants
+from zoo.core.iterations import class_iteration_bases
 from zoo.core.params import ParameterSet
 
 
@@ -68,7 +69,7 @@ LEVEL_TABLES: dict[Level, str] = {
 #: class is an n-fold iteration, or has a non-cyclic group, when one of its readings is.
 FIRST, LARGEST, EVERY = "label", "largest over the readings", "true of every reading"
 
-Value = int | bool | Fraction | ParameterSet | str  # str: a label as stored
+Value = int | bool | Fraction | ParameterSet | str | None  # str: a label as stored; None: empty
 
 
 @dataclass(frozen=True)
@@ -101,6 +102,7 @@ class Invariant:
     structural: bool = False
     query: bool = True
     json_pair: bool = False  # JSON writes the pair [value, A/value] (the transition group)
+    nullable: bool = False  # may be empty: not decided for this entry (the behaviour bound)
 
     @property
     def key(self) -> str:
@@ -138,7 +140,7 @@ class Invariant:
         if self.compute is None:
             raise ValueError(f"{self.name} is not a formula of the parameters")
         if self.over_readings == LARGEST:
-            return max(self.compute(r) for r in readings)
+            return max(cast(int, self.compute(r)) for r in readings)
         if self.over_readings == EVERY:
             return all(self.compute(r) for r in readings)
         return self.compute(readings[0])
@@ -209,6 +211,16 @@ INVARIANTS: tuple[Invariant, ...] = (
               "largest n such that the system is an n-fold iteration of a smaller one"
               " (docs/theory/iterations.md)", "docs/theory/iterations.md",
               algebra.iteration_depth, "iteration", "iteration >= 2", over_readings=LARGEST),
+    Invariant("iterates", _C, _INT, "iteration of (count)", "classes",
+              "number of classes of which this class is an n-fold temporal iteration, n >= 2"
+              " (docs/theory/iterations.md)", "docs/theory/iterations.md",
+              lambda p: len(class_iteration_bases(p)), "iterates", "iterates >= 1"),
+    Invariant("behaviour_count", _C, _INT, "behaving alike (count)", "classes",
+              "stored classes whose reachability graph is isomorphic to this one's, itself"
+              " included; empty above the catalog's state bound (docs/theory/behaviour.md)",
+              "counted by the build over the stored classes, checked with explicit isomorphisms"
+              " (docs/theory/behaviour.md)", None, "behaviour_count",
+              "behaviour_count > 1", json_key="behaviour.count", nullable=True),
     Invariant("reading_count", _C, _INT, "number of readings", "readings",
               "number of readings in the class: 1, or 2 when the swap gives a different reading",
               "counted by the classification (docs/theory/isomorphism.md)",

@@ -42,6 +42,11 @@ _QUERY_EXAMPLES = (
     ),
     ("states > 10^20 and area <= 200", "systems with more than 10^20 reachable markings"),
     (
+        "behaviour_count > 1 and alpha >= 2 and beta >= 2",
+        "nets that share their behaviour with another class, directed cycles left out",
+    ),
+    ("iterates >= 1 and processes = 1", "one-process systems built by iterating a smaller one"),
+    (
         "readings = 2 and (γ = 1 or δ = 1)",
         "classes with two readings and a member with γ = 1 or δ = 1",
     ),
@@ -113,6 +118,10 @@ def render_query_docs() -> str:
         "* Integer and exact-integer fields take whole numbers only: `area = 1/2` is an "
         "error. Exact integers (reachable states, arcs, automorphism orders) have no size "
         "limit in the catalog: reachable state counts pass 10^58 by area 200.",
+        "* `behaviour_count` is empty for a class the catalog has not decided (more reachable "
+        "states than the catalog's state bound, docs/theory/behaviour.md); in a query an empty "
+        "count is 0, so `behaviour_count > 1` and `behaviour_count = 1` only match decided "
+        "classes and `behaviour_count = 0` lists the undecided ones.",
         "",
         "## Examples",
         "",

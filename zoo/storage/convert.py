@@ -74,6 +74,8 @@ def class_entry(
             {**loaded_values("classes", row), **loaded_values("frames", row, "frame_")}
         ),
         seeds=tuple(sorted(seeds, key=lambda s: s.name)),
+        behaviour_id=row.behaviour_id,
+        behaviour_evidence=row.behaviour_evidence,
     )
 
 
@@ -127,6 +129,10 @@ class _Class(Protocol):
     def readings(self) -> Sequence[_Reading]: ...
     @property
     def values(self) -> Mapping[str, object]: ...
+    @property
+    def behaviour_key(self) -> str | None: ...
+    @property
+    def behaviour_evidence(self) -> str | None: ...
 
 
 class _Frame(Protocol):
@@ -237,5 +243,8 @@ def _class_row(c: _Class) -> dict[str, object]:
         "label_delta": label.delta,
         "frame_id": c.frame_id,
         "fingerprint": c.fingerprint,
+        "behaviour_key": c.behaviour_key,
+        "behaviour_evidence": c.behaviour_evidence,
+        "behaviour_id": None,  # given in catalog order once the areas below are stored
         **stored_row("classes", c.values),  # every class invariant of the registry
     }

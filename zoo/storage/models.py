@@ -27,6 +27,7 @@ from sqlalchemy import (
     MetaData,
     Text,
     UniqueConstraint,
+    false,
 )
 from sqlalchemy.engine.default import DefaultExecutionContext
 from sqlalchemy.orm import DeclarativeBase, Mapped, mapped_column, relationship
@@ -104,7 +105,9 @@ def invariant_columns(table: str) -> dict[str, Any]:
         elif inv.type is registry.ValueType.TEXT:
             columns[names[0]] = mapped_column(Text, nullable=False)
         else:
-            columns[names[0]] = mapped_column(Integer, nullable=False, index=inv.indexed or None)
+            columns[names[0]] = mapped_column(
+                Integer, nullable=inv.nullable, index=inv.indexed or None
+            )
     return columns
 
 
@@ -142,7 +145,9 @@ def stored_row(table: str, values: Mapping[str, object]) -> dict[str, object]:
         except KeyError:
             raise KeyError(f"no value of {name} for a row of {table}") from None
         # A build writes every row through here: plain ints, bools and fractions go straight in.
-        if kind == _WHOLE and type(value) is int:
+        if value is None and name in _NULLABLE:
+            row[first] = None  # not decided here; filled in later (behaviour_count)
+        elif kind == _WHOLE and type(value) is int:
             row[first] = value
         elif kind == _EXACT and type(value) is int:
             row[first] = str(value)
@@ -164,6 +169,8 @@ _WHOLE, _EXACT, _RATIO, _YES_NO = (
     registry.ValueType.BOOLEAN.value,
 )
 
+_NULLABLE = frozenset(inv.name for inv in registry.INVARIANTS if inv.nullable)
+
 #: (name, type, first column, second column or "") of the invariants stored on each table.
 _STORED_LAYOUT: dict[str, tuple[tuple[str, str, str, str], ...]] = {
     table: tuple(
@@ -174,11 +181,11 @@ _STORED_LAYOUT: dict[str, tuple[tuple[str, str, str, str], ...]] = {
 }
 
 
-def loaded_values(table: str, row: Any, prefix: str = "") -> dict[str, registry.Value]:
+def loaded_values(table: str, row: Any, prefix: str = "") -> dict[str, registry.Value | None]:
     """Every registry invariant stored on ``table``, read back from a result row (the inverse
     of ``stored_row``); ``prefix`` is put before the column labels of a joined table."""
     mapping = row._mapping
-    values: dict[str, registry.Value] = {}
+    values: dict[str, registry.Value | None] = {}
     for inv in registry.stored_on(table):
         first = mapping[prefix + inv.columns[0]]
         if inv.type is registry.ValueType.FRACTION:
@@ -187,6 +194,8 @@ def loaded_values(table: str, row: Any, prefix: str = "") -> dict[str, registry.
             values[inv.name] = bool(first)
         elif inv.type is registry.ValueType.TEXT:
             values[inv.name] = str(first)
+        elif first is None and inv.nullable:
+            values[inv.name] = None  # not decided (behaviour above the state bound)
         else:  # whole numbers, and exact integers from their decimal text
             values[inv.name] = int(first)
     return values
@@ -257,6 +266,8 @@ class AreaRecord(Base):
     frames: Mapped[int] = mapped_column(Integer)
     built_at: Mapped[datetime | None] = mapped_column(DateTime(timezone=True))
     seconds: Mapped[float | None] = mapped_column(Float)
+    # Behaviour identifiers given to this area's classes (all areas below have them too).
+    behaviour_done: Mapped[bool] = mapped_column(Boolean, default=False, server_default=false())
 
     __table_args__ = (CheckConstraint("area >= 1", name="area_positive"),)
 
@@ -302,6 +313,12 @@ class ClassRecord(ClassInvariantColumns, Base):
     label_delta: Mapped[int] = mapped_column(Integer)
     frame_id: Mapped[str] = mapped_column(ForeignKey("frames.id"), index=True)
     fingerprint: Mapped[str] = mapped_column(Text, unique=True)
+    # Behaviour (docs/theory/behaviour.md): the key computed with the class (equal keys, same
+    # behaviour), how it was found, and the behaviour identifier ``BE{area}-{rank}`` of the
+    # first class with that key, given by the build in catalog order. Empty above the bound.
+    behaviour_key: Mapped[str | None] = mapped_column(Text, index=True, nullable=True)
+    behaviour_evidence: Mapped[str | None] = mapped_column(Text, nullable=True)
+    behaviour_id: Mapped[str | None] = mapped_column(Text, index=True, nullable=True)
     # The invariant columns (loop, states, ..., member_count) come from the registry of
     # invariants through ClassInvariantColumns.
 

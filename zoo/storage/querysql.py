@@ -61,6 +61,7 @@ from sqlalchemy import (
 from sqlalchemy.ext.compiler import compiles
 from sqlalchemy.sql.visitors import InternalTraversal
 
+from zoo.core import registry
 from zoo.query.fields import Field, FieldType, Level, require_field
 from zoo.query.parser import (
     And,
@@ -110,9 +111,25 @@ Tables = dict[str, FromClause]
 
 
 def _column(spec: str, tables: Tables | None = None) -> ColumnElement[Any]:
+    """A field's column for conditions and sorting. An empty value (a count not decided, such
+    as ``behaviour_count`` above the state bound) compares as 0, as docs/query-language.md
+    says: a query never treats an undecided value as known, and never meets SQL's NULL."""
     table, _, name = spec.partition(".")
     source = tables.get(table) if tables else None
-    return (source if source is not None else _TABLES[table]).c[name]
+    column = (source if source is not None else _TABLES[table]).c[name]
+    return func.coalesce(column, 0) if spec in _EMPTY_AS_ZERO else column
+
+
+def _stored_column(spec: str) -> ColumnElement[Any]:
+    """A field's column as stored (empty stays empty), for showing values."""
+    table, _, name = spec.partition(".")
+    return _TABLES[table].c[name]
+
+
+#: The columns of the invariants that may be empty (zoo.core.registry, ``nullable``).
+_EMPTY_AS_ZERO = frozenset(
+    f"{inv.table}.{column}" for inv in registry.INVARIANTS if inv.nullable for column in inv.columns
+)
 
 
 #: Operands per SQL group: longer and/or lists are split into nested parenthesised groups, so
@@ -352,16 +369,16 @@ def sort_clause(field_name: str, descending: bool = False) -> tuple[ColumnElemen
 def _text_expression(field: Field) -> ColumnElement[str]:
     """A per-row expression giving the field's value as text (``3``, ``1/3``, ``yes``)."""
     if field.type is FieldType.BIG_INTEGER:
-        return _column(field.columns[0])
+        return _stored_column(field.columns[0])
     if field.type is FieldType.BOOLEAN:
-        return case((_column(field.columns[0]) == true(), "yes"), else_="no")
+        return case((_stored_column(field.columns[0]) == true(), "yes"), else_="no")
     if field.type is FieldType.FRACTION:
-        numerator, denominator = (_column(c) for c in field.columns)
+        numerator, denominator = (_stored_column(c) for c in field.columns)
         return case(
             (denominator == 1, cast(numerator, String)),
             else_=cast(numerator, String) + "/" + cast(denominator, String),
         )
-    return cast(_column(field.columns[0]), String)
+    return cast(_stored_column(field.columns[0]), String)
 
 
 def column_clause(field_name: str) -> Label[str]:

@@ -341,9 +341,106 @@ class CatalogReader:
                     listed.sort(key=partial(_sort_key, field))
         return result
 
+    # behaviour (docs/theory/behaviour.md)
+
+    def behaviour_members(self, behaviour_id: str) -> list[str]:
+        """The stored classes of one behaviour class, in catalog order."""
+        rows = self.connection.execute(
+            select(_CLASSES.c.id)
+            .where(_CLASSES.c.behaviour_id == behaviour_id)
+            .order_by(_CLASSES.c.area, _CLASSES.c.rank)
+        )
+        return [row[0] for row in rows]
+
+    def behaviour_done_areas(self) -> list[int]:
+        """Complete areas whose classes have their behaviour identifiers, in order."""
+        rows = self.connection.execute(
+            select(_AREAS.c.area)
+            .where(_AREAS.c.complete.is_(True), _AREAS.c.behaviour_done.is_(True))
+            .order_by(_AREAS.c.area)
+        )
+        return [row[0] for row in rows]
+
+    def behaviour_pending_areas(self) -> list[int]:
+        """Complete areas whose classes have no behaviour identifiers yet, in order."""
+        rows = self.connection.execute(
+            select(_AREAS.c.area)
+            .where(_AREAS.c.complete.is_(True), _AREAS.c.behaviour_done.is_(False))
+            .order_by(_AREAS.c.area)
+        )
+        return [row[0] for row in rows]
+
+    def behaviour_rows(self, area: int) -> list[Any]:
+        """(id, label, fingerprint, behaviour_key, behaviour_evidence) of an area's classes,
+        by rank."""
+        return list(
+            self.connection.execute(
+                select(
+                    _CLASSES.c.id,
+                    _CLASSES.c.label,
+                    _CLASSES.c.fingerprint,
+                    _CLASSES.c.behaviour_key,
+                    _CLASSES.c.behaviour_evidence,
+                )
+                .where(_CLASSES.c.area == area)
+                .order_by(_CLASSES.c.rank)
+            )
+        )
+
+    def behaviour_holder(self, key: str) -> tuple[str, str, str] | None:
+        """(behaviour id, class id, label) of the first class with this key that has its
+        behaviour identifier, or None."""
+        row = self.connection.execute(
+            select(_CLASSES.c.behaviour_id, _CLASSES.c.id, _CLASSES.c.label)
+            .where(_CLASSES.c.behaviour_key == key, _CLASSES.c.behaviour_id.is_not(None))
+            .order_by(_CLASSES.c.area, _CLASSES.c.rank)
+            .limit(1)
+        ).first()
+        return None if row is None else (row[0], row[1], row[2])
+
 
 class CatalogWriter(CatalogReader):
     """Writes inside one write transaction (``Repository.write()``)."""
+
+    def set_behaviour(
+        self, class_id: str, key: str | None, evidence: str | None, behaviour_id: str | None
+    ) -> None:
+        """Store a class's behaviour key, its evidence and its behaviour identifier."""
+        self.connection.execute(
+            update(_CLASSES)
+            .where(_CLASSES.c.id == class_id)
+            .values(behaviour_key=key, behaviour_evidence=evidence, behaviour_id=behaviour_id)
+        )
+
+    def recount_behaviour(self, behaviour_ids: Sequence[str]) -> None:
+        """Set ``behaviour_count`` of every member of these behaviour classes to their count."""
+        for chunk in _chunks(sorted(set(behaviour_ids))):
+            counts = self.connection.execute(
+                select(_CLASSES.c.behaviour_id, func.count())
+                .where(_CLASSES.c.behaviour_id.in_(chunk))
+                .group_by(_CLASSES.c.behaviour_id)
+            ).all()
+            for behaviour_id, count in counts:
+                self.connection.execute(
+                    update(_CLASSES)
+                    .where(_CLASSES.c.behaviour_id == behaviour_id)
+                    .values(behaviour_count=count)
+                )
+
+    def claim_behaviour_area(self, area: int) -> bool:
+        """Mark a complete area's classes as named, before naming them in this transaction;
+        False when another build named them first (the update is atomic on both stores: a
+        concurrent claim waits for this transaction, then finds nothing left to update)."""
+        result = self.connection.execute(
+            update(_AREAS)
+            .where(
+                _AREAS.c.area == area,
+                _AREAS.c.complete.is_(True),
+                _AREAS.c.behaviour_done.is_(False),
+            )
+            .values(behaviour_done=True)
+        )
+        return result.rowcount == 1
 
     def put_info(self, key: str, value: str) -> None:
         if self.connection.execute(select(_INFO.c.key).where(_INFO.c.key == key)).first() is None:

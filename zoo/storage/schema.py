@@ -6,4 +6,4 @@ Alembic's head of ``migrations/versions``. A new migration updates it (DEVELOPER
 migration").
 """
 
-SCHEMA_HEAD = "0003"
+SCHEMA_HEAD = "0004"

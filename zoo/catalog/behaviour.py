@@ -1,0 +1,98 @@
+"""Behaviour identifiers: which stored classes behave alike (docs/theory/behaviour.md).
+
+Each class of at most ``BEHAVIOUR_STATE_LIMIT`` reachable states carries a behaviour key,
+computed with its area (``zoo.core.behaviour.behaviour_key``): equal keys, isomorphic
+reachability graphs. The build then names the behaviour classes area by area, in catalog order
+and only over the complete prefix of areas: a class whose key no earlier class has founds the
+behaviour class ``BE{area}-{rank}`` after its own identifier; a class whose key is taken joins
+that behaviour class, and a join of two different nets is confirmed by an explicit map of their
+state graphs before it is stored.
+
+Why the names never change meaning: a class with s states has area at most s, so every member
+of a behaviour class lies at or below its state count, and the first member in catalog order is
+found first whatever bound is built later. The listing of a behaviour class is complete once the
+catalog is named up to area s (``Catalog.behaviour_complete_to``).
+"""
+
+from __future__ import annotations
+
+from zoo.catalog.identifiers import behaviour_identifier
+from zoo.catalog.service import Catalog
+from zoo.core.params import parse_params
+from zoo.errors import CatalogError
+
+#: ``catalog_info`` key holding the state bound the behaviour keys were computed with.
+STATE_BOUND_KEY = "behaviour_state_bound"
+
+
+def name_behaviour(catalog: Catalog) -> list[int]:
+    """Give behaviour identifiers to the classes of every complete area not named yet, in
+    increasing area up to the first missing area; one transaction per area. Areas stored by
+    an older zoo (no behaviour keys) get their keys computed here. Returns the areas named."""
+    from zoo.core.behaviour import BEHAVIOUR_STATE_LIMIT, behaviour_key
+
+    complete_to = catalog.complete_to()
+    with catalog.repository.read() as reader:
+        pending = [a for a in reader.behaviour_pending_areas() if a <= complete_to]
+        bound = reader.info().get(STATE_BOUND_KEY)
+    if not pending:
+        return []
+    if bound is not None and int(bound) != BEHAVIOUR_STATE_LIMIT:
+        raise CatalogError(
+            f"catalog {catalog.location} holds behaviour keys up to {int(bound):,} states, this "
+            f"zoo computes them up to {BEHAVIOUR_STATE_LIMIT:,}; build a new catalog with "
+            "--db NEW_FILE"
+        )
+    named: list[int] = []
+    for area in pending:
+        with catalog.repository.write() as writer:
+            if not writer.claim_behaviour_area(area):
+                continue  # a concurrent build named it
+            if bound is None:
+                writer.put_info(STATE_BOUND_KEY, str(BEHAVIOUR_STATE_LIMIT))
+                bound = str(BEHAVIOUR_STATE_LIMIT)
+            touched: list[str] = []
+            for row in writer.behaviour_rows(area):
+                key, evidence = row.behaviour_key, row.behaviour_evidence
+                if key is None:  # above the bound, or stored before keys were computed
+                    found = behaviour_key(parse_params(row.label), row.fingerprint)
+                    if found is not None:
+                        key, evidence = found.key, found.evidence
+                if key is None:
+                    continue
+                holder = writer.behaviour_holder(key)
+                if holder is None:
+                    behaviour_id = behaviour_identifier(row.id)
+                else:
+                    behaviour_id, first_id, first_label = holder
+                    evidence = _join_evidence(key, evidence, first_id, first_label, row.label)
+                writer.set_behaviour(row.id, key, evidence, behaviour_id)
+                touched.append(behaviour_id)
+            writer.recount_behaviour(touched)
+        named.append(area)
+    return named
+
+
+def _join_evidence(
+    key: str, evidence: str | None, first_id: str, first_label: str, label: str
+) -> str:
+    """The evidence for joining ``label`` to the behaviour class of ``first_id``.
+
+    A directed cycle of s markings is the same graph whatever the net; other joins are checked
+    with an explicit state map (``compare_behaviour``), arc by arc.
+    """
+    from zoo.core.behaviour import compare_behaviour
+
+    if key.startswith("cycle:"):
+        return f"{evidence}, as that of {first_id}"
+    answer = compare_behaviour(parse_params(first_label), parse_params(label))
+    if answer.same is not True or answer.state_map is None:
+        raise CatalogError(
+            f"{label} and {first_label} ({first_id}) have the same behaviour key, but no map of "
+            f"their state graphs was found ({answer.evidence}); this is a bug in zoo, please "
+            "report it with both parameter sets"
+        )
+    return f"explicit map of the state graph onto that of {first_id}, checked arc by arc"
+
+
+__all__ = ["STATE_BOUND_KEY", "name_behaviour"]
