@@ -141,10 +141,9 @@ def test_the_fast_read_back_agrees_with_the_synthesized_net() -> None:
     # own_net_read_back decides with the known transition names what synthesized_net computes
     # from the unlabelled graph; nauty's canonical forms are the reference for "gives back the
     # class's own net".
-    from zoo.core.behaviour import own_net_read_back, synthesized_net
+    from zoo.core.behaviour import firing_arcs, own_net_read_back, synthesized_net
     from zoo.core.canonical import canonical_form
     from zoo.core.net import build_net
-    from zoo.core.reachability import reachability_graph
 
     checked = given_back = 0
     for p in class_labels(22):
@@ -156,7 +155,7 @@ def test_the_fast_read_back_agrees_with_the_synthesized_net() -> None:
             synthesized is not None
             and canonical_form(synthesized.net).fingerprint == canonical_form(net).fingerprint
         )
-        assert own_net_read_back(net, reachability_graph(net)) is expected, p
+        assert own_net_read_back(net, firing_arcs(net)[1]) is expected, p
         checked += 1
         given_back += expected
     assert checked > 250 and given_back == checked  # no cycloid up to 22 hides its net
@@ -165,7 +164,7 @@ def test_the_fast_read_back_agrees_with_the_synthesized_net() -> None:
 def test_the_fast_read_back_refuses_a_net_with_a_place_too_many() -> None:
     # An implied place (a copy of the path t -> u -> v with its tokens) leaves the state graph
     # unchanged, so the net read back from it lacks that place: not the net itself.
-    from zoo.core.behaviour import own_net_read_back
+    from zoo.core.behaviour import firing_arcs, own_net_read_back
     from zoo.core.net import MarkedGraph, build_net
     from zoo.core.reachability import reachability_graph
 
@@ -179,9 +178,27 @@ def test_the_fast_read_back_refuses_a_net_with_a_place_too_many() -> None:
         post=(*net.post, net.post[second]),
         tokens=(*net.tokens, net.tokens[first] + net.tokens[second]),
     )
-    assert own_net_read_back(net, reachability_graph(net)) is True
+    assert own_net_read_back(net, firing_arcs(net)[1]) is True
     assert reachability_graph(extra).state_count == reachability_graph(net).state_count
-    assert own_net_read_back(extra, reachability_graph(extra)) is False
+    assert own_net_read_back(extra, firing_arcs(extra)[1]) is False
+
+
+def test_firing_arcs_are_the_reachability_graph() -> None:
+    # The build's fast search against zoo.core.reachability's general one (markings as place
+    # bit masks in both), on every class up to area 14 and a few large ones.
+    from zoo.core.behaviour import firing_arcs
+    from zoo.core.net import build_net
+    from zoo.core.reachability import reachability_graph
+
+    labels = [p for p in class_labels(14) if reachable_state_count(p) <= 5_000]
+    for p in [*labels, C(7, 7, 1, 4), C(4, 4, 10, 12)]:
+        net = build_net(p)
+        reference = reachability_graph(net)
+        markings, arcs = firing_arcs(net)
+        assert markings[0] == reference.codes[0] and len(markings) == reference.state_count
+        assert {(markings[s], t, markings[u]) for s, t, u in arcs.tolist()} == {
+            (reference.codes[s], t, reference.codes[u]) for s, t, u in reference.arcs
+        }, p
 
 
 def test_behaviour_keys_agree_with_networkx_on_every_pair_of_small_classes() -> None:

@@ -500,7 +500,7 @@ def behaviour_key(
     if min(p.alpha, p.beta) == 1:
         return BehaviourKey(f"cycle:{states}", states, CYCLE_EVIDENCE)
     net = build_net(p)
-    if own_net_read_back(net, reachability_graph(net, limit).arcs):
+    if own_net_read_back(net, firing_arcs(net, limit)[1]):
         return BehaviourKey(f"net:{class_fingerprint}", states, OWN_NET_EVIDENCE)
     graph = state_graph_of(net, limit)
     synthesized = synthesized_net(graph)
@@ -508,6 +508,61 @@ def behaviour_key(
         return None
     fingerprint = canonical_form(synthesized.net).fingerprint
     return BehaviourKey(f"net:{fingerprint}", states, SYNTHESIZED_EVIDENCE)
+
+
+def firing_arcs(net: MarkedGraph, limit: int = BEHAVIOUR_STATE_LIMIT) -> tuple[list[int], Any]:
+    """The reachability graph of a safe marked graph as (markings, arcs): ``markings[i]`` has
+    bit j set when place j holds a token in state i, and ``arcs`` is an (arcs × 3) numpy array
+    of (source state, transition, target state). State 0 is the initial marking; states are
+    numbered breadth first, each after the state it was first reached from.
+
+    The same graph as ``zoo.core.reachability.reachability_graph`` (the tests compare them),
+    made faster for the thousands of classes a build decides: a place of a marked graph has one
+    output transition, so firing t leaves every other enabled transition enabled, and only the
+    transitions fed by t's output places can become enabled. ``LimitExceeded`` above
+    ``limit`` states; ``ArithmeticError`` when a place would get a second token.
+    """
+    import numpy as np
+
+    inputs = [0] * net.transition_count
+    outputs = [0] * net.transition_count
+    for j in range(net.place_count):
+        outputs[net.pre[j]] |= 1 << j
+        inputs[net.post[j]] |= 1 << j
+    fed = [
+        tuple(u for u in range(net.transition_count) if inputs[u] & outputs[t])
+        for t in range(net.transition_count)
+    ]
+    if any(k > 1 for k in net.tokens):
+        raise ArithmeticError(f"{net.describe()} is not safe in its initial marking")
+    start = sum(1 << j for j, k in enumerate(net.tokens) if k)
+    markings = [start]
+    enabled_in = [tuple(t for t in range(net.transition_count) if start & inputs[t] == inputs[t])]
+    index = {start: 0}
+    found: list[int] = []
+    state = 0
+    while state < len(markings):
+        marking, enabled = markings[state], enabled_in[state]
+        for t in enabled:
+            rest = marking ^ inputs[t]
+            if rest & outputs[t]:
+                raise ArithmeticError(f"{net.describe()} is not safe: a place gets a second token")
+            after = rest | outputs[t]
+            target = index.get(after)
+            if target is None:
+                target = len(markings)
+                if target >= limit:
+                    raise LimitExceeded(
+                        f"reachability graph of {net.describe()} has more than {limit:,} states"
+                    )
+                index[after] = target
+                markings.append(after)
+                still = [u for u in enabled if u != t]
+                woken = [u for u in fed[t] if after & inputs[u] == inputs[u] and u not in still]
+                enabled_in.append(tuple(sorted(still + woken)))
+            found.extend((state, t, target))
+        state += 1
+    return markings, np.array(found, dtype=np.int64).reshape(-1, 3)
 
 
 def own_net_read_back(net: MarkedGraph, arcs: Any) -> bool:
@@ -539,17 +594,20 @@ def own_net_read_back(net: MarkedGraph, arcs: Any) -> bool:
     states = int(target.max()) + 1 if len(arcs) else 1
     arc_at = np.full((states, transitions), -1, dtype=np.int64)
     arc_at[source, label] = np.arange(len(arcs))
-    enabled = arc_at >= 0
-    # Joins: arc (u, b, w) joins the arcs of every a != b enabled at both u and w.
-    kept_enabled = enabled[source] & enabled[target]
-    kept_enabled[np.arange(len(arcs)), label] = False
-    arc_index, joined = np.nonzero(kept_enabled)
-    if (
-        _component_count(
-            len(arcs), arc_at[source[arc_index], joined], arc_at[target[arc_index], joined]
-        )
-        != transitions
-    ):
+    # Joins: arc (u, b, w) joins the arc of every other transition a enabled at u with the arc
+    # of a at w, when a is enabled there (always, in a marked graph: firing b takes no token
+    # from a's places). Arcs are grouped by source state, as the search lists them.
+    degree = np.bincount(source, minlength=states)
+    repeat = degree[source]
+    first_of_source = np.cumsum(degree) - degree
+    arc = np.repeat(np.arange(len(arcs)), repeat)
+    group_start = np.repeat(np.cumsum(repeat) - repeat, repeat)
+    other = first_of_source[source[arc]] + np.arange(len(arc)) - group_start
+    keep = other != arc
+    arc, other = arc[keep], other[keep]
+    joined = arc_at[target[arc], label[other]]
+    keep = joined >= 0
+    if _component_count(len(arcs), other[keep], joined[keep]) != transitions:
         return False
     # Firing counts of every state, along the arcs that discovered the states.
     first_arc = np.full(states, -1, dtype=np.int64)
@@ -558,22 +616,33 @@ def own_net_read_back(net: MarkedGraph, arcs: Any) -> bool:
     # A count is at most the state's depth, below the state bound: int16 holds every
     # difference, and halves the memory traffic of the ranges below.
     counts = np.zeros((states, transitions), dtype=np.int16 if states < 2**15 else np.int64)
-    parents = source[first_arc[1:]].tolist()
-    fired = label[first_arc[1:]].tolist()
-    for state in range(1, states):
-        row = counts[state]
-        row[:] = counts[parents[state - 1]]
-        row[fired[state - 1]] += 1
-    low = np.empty((transitions, transitions), dtype=np.int64)
-    high = np.empty((transitions, transitions), dtype=np.int64)
+    parents = source[first_arc[1:]]  # non-decreasing: states are numbered breadth first
+    fired = label[first_arc[1:]]
+    start = 1
+    while start < states:  # one breadth-first layer at a time: parents lie before the layer
+        stop = 1 + int(np.searchsorted(parents, start))
+        layer = np.arange(start, stop)
+        counts[layer] = counts[parents[layer - 1]]
+        counts[layer, fired[layer - 1]] += 1
+        start = stop
+    # A pair (t, u) is a place when c(t) - c(u) takes at most two values. Most pairs take more
+    # within a few hundred states (that witness settles them); the others are scanned over
+    # every state.
     by_transition = np.ascontiguousarray(counts.T)  # one row per transition: contiguous scans
+    sample = np.ascontiguousarray(by_transition[:, :: max(1, states // 256)])
+    candidate = np.zeros((transitions, transitions), dtype=bool)
     for t in range(transitions):
-        difference = by_transition[t] - by_transition
-        low[t] = difference.min(axis=1)
-        high[t] = difference.max(axis=1)
-    region = high - low <= 1
-    np.fill_diagonal(region, False)
-    tokens = np.where(region, -low, np.iinfo(np.int64).max // 4)
+        difference = sample[t] - sample
+        candidate[t] = difference.max(axis=1) - difference.min(axis=1) <= 1
+    np.fill_diagonal(candidate, False)
+    first, second = np.nonzero(candidate)
+    difference = by_transition[first] - by_transition[second]
+    low = difference.min(axis=1).astype(np.int64)
+    is_place = difference.max(axis=1) - low <= 1
+    region = np.zeros((transitions, transitions), dtype=bool)
+    region[first[is_place], second[is_place]] = True
+    tokens = np.full((transitions, transitions), np.iinfo(np.int64).max // 4, dtype=np.int64)
+    tokens[first[is_place], second[is_place]] = -low[is_place]
     via = (tokens[:, :, None] + tokens[None, :, :]).min(axis=1)  # best path t -> x -> u
     kept = region & (via > tokens)
     found = sorted(zip(*(a.tolist() for a in np.nonzero(kept)), strict=True))
@@ -582,26 +651,17 @@ def own_net_read_back(net: MarkedGraph, arcs: Any) -> bool:
     return found_places == own_places
 
 
-def _component_count(nodes: int, first: object, second: object) -> int:
+def _component_count(nodes: int, first: Any, second: Any) -> int:
     """The number of connected components of a graph on ``nodes`` nodes with the given edges."""
     import numpy as np
+    from scipy.sparse import coo_array
+    from scipy.sparse.csgraph import connected_components
 
-    parent = np.arange(nodes)
-    a = np.asarray(first, dtype=np.int64)
-    b = np.asarray(second, dtype=np.int64)
-    while True:  # hook roots onto smaller roots, then jump pointers, until stable
-        ra, rb = parent[a], parent[b]
-        low = np.minimum(ra, rb)
-        before = parent.copy()
-        np.minimum.at(parent, ra, low)
-        np.minimum.at(parent, rb, low)
-        while True:
-            jumped = parent[parent]
-            if np.array_equal(jumped, parent):
-                break
-            parent = jumped
-        if np.array_equal(parent, before):
-            return int(np.count_nonzero(parent == np.arange(nodes)))
+    edges = coo_array(
+        (np.ones(len(first), dtype=np.int8), (np.asarray(first), np.asarray(second))),
+        shape=(nodes, nodes),
+    )
+    return int(connected_components(edges, directed=False)[0])
 
 
 __all__ = [
@@ -619,6 +679,7 @@ __all__ = [
     "check_state_map",
     "compare_behaviour",
     "cycle_order",
+    "firing_arcs",
     "refined_colours",
     "state_graph",
     "state_graph_isomorphism",
