@@ -18,6 +18,7 @@ from __future__ import annotations
 import importlib.util
 from collections.abc import Sequence
 from pathlib import Path
+from typing import Any
 
 import sqlalchemy as sa
 from alembic import op
@@ -28,14 +29,28 @@ branch_labels: str | Sequence[str] | None = None
 depends_on: str | Sequence[str] | None = None
 
 
-def _views_0003() -> tuple[tuple[str, str], ...]:
-    """The view definitions of revision 0003 (its module name starts with a digit)."""
+def _revision_0003() -> Any:
+    """Revision 0003's module, for its view definitions (its file name starts with a digit)."""
     path = Path(__file__).with_name("0003_catalog_views.py")
     spec = importlib.util.spec_from_file_location("zoo_migration_0003", path)
     assert spec is not None and spec.loader is not None
     module = importlib.util.module_from_spec(spec)
     spec.loader.exec_module(module)
-    return tuple(module.VIEWS)
+    return module
+
+
+def _views_0003() -> tuple[tuple[str, str], ...]:
+    return tuple(_revision_0003().VIEWS)
+
+
+def _comment_sort_keys() -> None:
+    """The PostgreSQL column comments of revision 0003 (a view made again loses them)."""
+    if op.get_bind().dialect.name != "postgresql":
+        return
+    note_template = _revision_0003()._SORT_NOTE
+    for column in ("states", "state_arcs", "automorphisms", "net_automorphisms"):
+        note = note_template.format(column=column).replace("'", "''")
+        op.execute(f"COMMENT ON COLUMN class_summary.{column} IS '{note}'")
 
 
 _NEW_SUMMARY_COLUMNS = """
@@ -105,6 +120,7 @@ def upgrade() -> None:
     op.execute(
         f"CREATE VIEW class_summary AS {_summary_with_relations(views['class_summary']).strip()}"
     )
+    _comment_sort_keys()
 
 
 def downgrade() -> None:
@@ -123,3 +139,4 @@ def downgrade() -> None:
         batch.drop_column("iterates")
     for name, select in views:
         op.execute(f"CREATE VIEW {name} AS {select.strip()}")
+    _comment_sort_keys()
