@@ -17,12 +17,10 @@ catalog is named up to area s (``Catalog.behaviour_complete_to``).
 from __future__ import annotations
 
 from zoo.catalog.identifiers import behaviour_identifier
+from zoo.catalog.service import BEHAVIOUR_BOUND_KEY as STATE_BOUND_KEY
 from zoo.catalog.service import Catalog
 from zoo.core.params import parse_params
 from zoo.errors import CatalogError
-
-#: ``catalog_info`` key holding the state bound the behaviour keys were computed with.
-STATE_BOUND_KEY = "behaviour_state_bound"
 
 
 def name_behaviour(catalog: Catalog) -> list[int]:

@@ -57,6 +57,10 @@ __all__ = [
 MAX_BUILD_AREA = 2_000
 #: The area up to which ``zoo find`` builds a catalog when none exists yet (issue 3).
 DEFAULT_MAX_AREA = 100
+
+#: ``catalog_info`` key holding the state bound S the behaviour keys were computed with
+#: (docs/theory/behaviour.md).
+BEHAVIOUR_BOUND_KEY = "behaviour_state_bound"
 _HTML_ROWS = 50  # rows a notebook shows of a result
 
 
@@ -87,6 +91,9 @@ class FindResult:
     matched: tuple[str | None, ...] = ()
     #: Whether another process was building the catalog when the answer was read.
     building: bool = False
+    #: When the query reads ``behaviour_count``: (the state bound S, the area up to which
+    #: behaviour identifiers are given), so that the note says what an undecided 0 means.
+    behaviour: tuple[int | None, int] | None = None
 
     # A result is the sequence of its entries: ``result[0]``, ``len(result)``, ``for e in result``.
     def __len__(self) -> int:
@@ -178,6 +185,13 @@ class FindResult:
             note += (
                 " A build of this catalog is in progress: this answer holds the areas complete "
                 "when it was read; ask again later for more."
+            )
+        if self.behaviour is not None:
+            bound, named_to = self.behaviour
+            states = f"at most {bound:,} reachable states" if bound else "no classes yet"
+            note += (
+                f" Behaviour is decided for the classes with {states}, named up to area "
+                f"{named_to}; behaviour_count is 0 for the others."
             )
         return note
 
@@ -439,7 +453,7 @@ class Catalog:
         ``columns`` names fields whose values come back as display text in
         ``FindResult.columns`` and typed in ``FindResult.values``.
         """
-        from zoo.query.parser import parse_query, referenced_area_bound
+        from zoo.query.parser import parse_query, referenced_area_bound, referenced_fields
 
         if limit is not None and limit < 0:
             raise ParameterError(f"--limit must be zero or more, got {limit}")
@@ -454,7 +468,13 @@ class Catalog:
             entries = reader.entries(ids)
             matched = reader.matched_readings(ids, node)
             complete_to = _complete_prefix(reader.complete_areas())
+            behaviour = None
+            if node is not None and "behaviour_count" in {f.name for f in referenced_fields(node)}:
+                bound = reader.info().get(BEHAVIOUR_BOUND_KEY)
+                named_to = _complete_prefix(reader.behaviour_done_areas())
+                behaviour = (int(bound) if bound else None, named_to)
         return FindResult(
+            behaviour=behaviour,
             building=build_in_progress(self.engine),
             query=query,
             entries=tuple(entries),
