@@ -143,6 +143,12 @@ CSV_COLUMNS: tuple[Column, ...] = (
            "d2 = A/d1 of the transition group Z_d1 × Z_d2", "none", _ALGEBRA),
     _query_column("cyclic", "cyclic", "class", "none", _ALGEBRA),
     _query_column("iteration", "iteration", "class", "none", _ALGEBRA),
+    _query_column("iterates", "iterates", "class", "classes", _ALGEBRA),
+    Column("behaviour_id", "string", lambda record, reading: record["behaviour"]["id"],
+           "behaviour class BE{area}-{rank}, named after its first class; empty above the "
+           "catalog's state bound (docs/theory/behaviour.md)", "none", _CATALOG),
+    _query_column("behaviour_count", "behaviour_count", "class", "classes", _CATALOG,
+                  get=lambda record, reading: record["behaviour"]["count"]),
     _query_column("readings", "reading_count", "class", "readings", _CATALOG),
     _query_column("members", "member_count", "class", "parameter sets", _CATALOG),
     Column("seeds", "string", lambda record, reading: [s["name"] for s in record["seeds"]],
