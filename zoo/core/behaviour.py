@@ -543,7 +543,7 @@ def firing_arcs(net: MarkedGraph, limit: int = BEHAVIOUR_STATE_LIMIT) -> tuple[l
     state = 0
     while state < len(markings):
         marking, enabled = markings[state], enabled_in[state]
-        for t in enabled:
+        for position, t in enumerate(enabled):
             rest = marking ^ inputs[t]
             if rest & outputs[t]:
                 raise ArithmeticError(f"{net.describe()} is not safe: a place gets a second token")
@@ -557,9 +557,11 @@ def firing_arcs(net: MarkedGraph, limit: int = BEHAVIOUR_STATE_LIMIT) -> tuple[l
                     )
                 index[after] = target
                 markings.append(after)
-                still = [u for u in enabled if u != t]
-                woken = [u for u in fed[t] if after & inputs[u] == inputs[u] and u not in still]
-                enabled_in.append(tuple(sorted(still + woken)))
+                still = enabled[:position] + enabled[position + 1 :]
+                woken = tuple(
+                    u for u in fed[t] if after & inputs[u] == inputs[u] and u not in still
+                )
+                enabled_in.append(still + woken)
             found.extend((state, t, target))
         state += 1
     return markings, np.array(found, dtype=np.int64).reshape(-1, 3)
@@ -625,23 +627,32 @@ def own_net_read_back(net: MarkedGraph, arcs: Any) -> bool:
         counts[layer] = counts[parents[layer - 1]]
         counts[layer, fired[layer - 1]] += 1
         start = stop
-    # A pair (t, u) is a place when c(t) - c(u) takes at most two values. Most pairs take more
-    # within a few hundred states (that witness settles them); the others are scanned over
-    # every state.
+    # A pair (t, u) is a place when c(t) - c(u) takes at most two values over the states. Two
+    # bounds settle most pairs without a scan. The tokens on a path from u to t are
+    # M0(path) + c(u) - c(t) >= 0, so c(t) - c(u) lies in [-d(t, u), d(u, t)], d the fewest
+    # tokens on a path in M0; and it takes at least two values (firing t changes it). A pair
+    # with d(t, u) + d(u, t) = 1 is therefore a place with d(t, u) tokens. Any other pair is a
+    # place only if its values stay within two: a sample of the states shows a third value
+    # for most of them, and the rest are scanned over every state.
+    distance = _token_distances(net)
+    bounded = distance + distance.T
+    np.fill_diagonal(bounded, 2)
     by_transition = np.ascontiguousarray(counts.T)  # one row per transition: contiguous scans
     sample = np.ascontiguousarray(by_transition[:, :: max(1, states // 256)])
     candidate = np.zeros((transitions, transitions), dtype=bool)
     for t in range(transitions):
         difference = sample[t] - sample
         candidate[t] = difference.max(axis=1) - difference.min(axis=1) <= 1
+    candidate &= bounded >= 2
     np.fill_diagonal(candidate, False)
     first, second = np.nonzero(candidate)
     difference = by_transition[first] - by_transition[second]
     low = difference.min(axis=1).astype(np.int64)
     is_place = difference.max(axis=1) - low <= 1
-    region = np.zeros((transitions, transitions), dtype=bool)
-    region[first[is_place], second[is_place]] = True
+    region = bounded <= 1
     tokens = np.full((transitions, transitions), np.iinfo(np.int64).max // 4, dtype=np.int64)
+    tokens[region] = distance[region]
+    region[first[is_place], second[is_place]] = True
     tokens[first[is_place], second[is_place]] = -low[is_place]
     via = (tokens[:, :, None] + tokens[None, :, :]).min(axis=1)  # best path t -> x -> u
     kept = region & (via > tokens)
@@ -649,6 +660,22 @@ def own_net_read_back(net: MarkedGraph, arcs: Any) -> bool:
     found_places = sorted((t, u, int(tokens[t, u])) for t, u in found)
     own_places = sorted(zip(net.pre, net.post, net.tokens, strict=True))
     return found_places == own_places
+
+
+def _token_distances(net: MarkedGraph) -> Any:
+    """d[t, u]: the fewest tokens of M0 on a directed path from transition t to transition u
+    (0 from t to itself; a large number when there is no path), by Floyd and Warshall."""
+    import numpy as np
+
+    size = net.transition_count
+    far = np.iinfo(np.int64).max // 4
+    distance = np.full((size, size), far, dtype=np.int64)
+    for t, u, k in zip(net.pre, net.post, net.tokens, strict=True):
+        distance[t, u] = min(distance[t, u], k)
+    np.fill_diagonal(distance, 0)
+    for middle in range(size):
+        np.minimum(distance, distance[:, middle : middle + 1] + distance[middle], out=distance)
+    return distance
 
 
 def _component_count(nodes: int, first: Any, second: Any) -> int:
