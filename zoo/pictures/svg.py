@@ -61,9 +61,9 @@ def text_width(text: str, size: float, monospace: bool = False) -> float:
 
 
 def _n(value: float) -> str:
-    """A coordinate with two decimals (a hundredth of a point), no trailing zeros."""
-    text = f"{value:.2f}".rstrip("0").rstrip(".")
-    return "0" if text in ("-0", "") else text
+    """A coordinate or size with one decimal: a tenth of a point, finer than a screen shows
+    at any usual zoom (and formatting is most of this writer's time)."""
+    return f"{value:.1f}"
 
 
 def _dash(dashed: bool, width: float) -> str:
@@ -88,8 +88,7 @@ class _Page:
         return (point[0] - self.x0) * self.unit, (self.y1 - point[1]) * self.unit
 
     def xy(self, point: Point) -> str:
-        x, y = self.at(point)
-        return f"{_n(x)},{_n(y)}"
+        return f"{(point[0] - self.x0) * self.unit:.1f},{(self.y1 - point[1]) * self.unit:.1f}"
 
     def grow(self, left: float, top: float, right: float, bottom: float) -> None:
         box = self.box

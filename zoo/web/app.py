@@ -7,6 +7,7 @@ path taken from a request ever reaches the file system.
 
 from __future__ import annotations
 
+import os
 from dataclasses import dataclass
 from importlib import resources
 
@@ -37,6 +38,8 @@ SECURITY_HEADERS = (
     (b"cross-origin-opener-policy", b"same-origin"),
     (b"permissions-policy", b"camera=(), microphone=(), geolocation=()"),
 )
+#: How ``zoo serve --workers N`` tells its server processes which catalog to open.
+SERVE_CATALOG_VARIABLE = "ZOO_SERVE_CATALOG"
 #: Largest request body (an upload plus the multipart envelope).
 MAX_BODY_BYTES = MAX_UPLOAD_BYTES + 64 * 1024
 
@@ -179,4 +182,16 @@ def create_app(
     return app
 
 
-__all__ = ["CONTENT_SECURITY_POLICY", "MAX_BODY_BYTES", "create_app"]
+def create_app_from_environment() -> Starlette:
+    """The app of one server process of ``zoo serve --workers N``: the catalog named by
+    ``$ZOO_SERVE_CATALOG`` (unset: the default catalog, as ``zoo serve`` without ``--db``)."""
+    return create_app(os.environ.get(SERVE_CATALOG_VARIABLE))
+
+
+__all__ = [
+    "CONTENT_SECURITY_POLICY",
+    "MAX_BODY_BYTES",
+    "SERVE_CATALOG_VARIABLE",
+    "create_app",
+    "create_app_from_environment",
+]
