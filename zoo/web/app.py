@@ -38,6 +38,7 @@ SECURITY_HEADERS = (
     (b"cross-origin-opener-policy", b"same-origin"),
     (b"permissions-policy", b"camera=(), microphone=(), geolocation=()"),
 )
+_OURS = frozenset(name for name, _ in SECURITY_HEADERS)
 #: How ``zoo serve --workers N`` tells its server processes which catalog to open.
 SERVE_CATALOG_VARIABLE = "ZOO_SERVE_CATALOG"
 #: Largest request body (an upload plus the multipart envelope).
@@ -63,9 +64,7 @@ class SecurityHeaders:
 
         async def send_with_headers(message: Message) -> None:
             if message["type"] == "http.response.start":
-                headers = [
-                    (k, v) for k, v in message.get("headers", []) if k not in dict(SECURITY_HEADERS)
-                ]
+                headers = [(k, v) for k, v in message.get("headers", []) if k not in _OURS]
                 message = {**message, "headers": [*headers, *SECURITY_HEADERS]}
             await send(message)
 
