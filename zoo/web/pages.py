@@ -229,7 +229,7 @@ def area_page(request: Request) -> Response:
 
 #: Pictures kept in memory: the two views of this many classes. A picture depends only on the
 #: parameter set (its label), never on the catalog, so the label is the whole key. At about
-#: 50 kB per area-100 picture this bounds the cache near 50 MB per server process.
+#: 55 kB per area-100 picture this bounds the cache near 55 MB per server process.
 PICTURE_CACHE_CLASSES = 512
 
 
