@@ -157,9 +157,42 @@ async def load(
     print(f"  {total / seconds:.1f} requests/s over {seconds:.0f} s, {clients} clients")
 
 
+def search_split(location: str) -> None:
+    """Per query, in this process and without load: what ``Catalog.find`` costs (the catalog's
+    part) against the whole search page (find plus the page's rows and template), best of 5."""
+    from urllib.parse import urlencode
+
+    from starlette.requests import Request
+
+    from zoo.web import answers, pages
+    from zoo.web.app import create_app
+
+    app = create_app(location)
+    print("  search split, one request at a time (best of 5):")
+    for query in QUERIES:
+        scope = {
+            "type": "http", "method": "GET", "path": "/search", "headers": [], "app": app,
+            "query_string": urlencode({"q": query, "limit": 50}).encode(), "path_params": {},
+        }  # fmt: skip
+        finds, whole = [], []
+        for _ in range(5):
+            started = time.perf_counter()
+            answers.search(app.state.catalog, query, limit=50)
+            middle = time.perf_counter()
+            pages.search_page(Request(scope))
+            finds.append(middle - started)
+            whole.append(time.perf_counter() - middle)
+        print(
+            f"    {query or '(empty)':<30} find {min(finds) * 1000:6.1f} ms, "
+            f"whole page {min(whole) * 1000:6.1f} ms"
+        )
+    app.state.catalog.close()
+
+
 def run(name: str, location: str, args: argparse.Namespace) -> None:
     print(f"{name}:")
     ids = build(location, args.max_area)
+    search_split(location)
     print(f"  {len(ids):,} classes; {args.workers} server processes")
     with server(location, args.workers) as url:
         print(f"  {'request':<12} {'count':>7} {'p50 ms':>8} {'p99 ms':>8} {'errors':>7}")
