@@ -6,15 +6,24 @@ Run from the repository root::
     .venv/bin/python benchmarks/bench_web.py --sqlite catalog.sqlite3 --postgres \\
         postgresql://postgres@127.0.0.1:5432/test --seconds 30 --clients 16
 
-For each backend it starts ``zoo serve`` in its own process on loopback (so that the clients do not
-share its interpreter), then runs ``--clients`` concurrent clients for ``--seconds`` seconds, each
-looping over three kinds of request, and prints per kind the count, p50 and p99 latency in
-milliseconds, and the number of errors (an answer other than 200, or no answer):
+For each backend it starts ``zoo serve`` (``--workers`` processes) in its own process on loopback
+(so that the clients do not share its interpreter), then runs ``--clients`` concurrent clients
+for ``--seconds`` seconds, each looping over three kinds of request, and prints per kind the
+count, p50 and p99 latency in milliseconds, and the number of errors (an answer other than 200,
+or no answer):
 
 * ``entry page``: ``/classes/ID`` of a class drawn at random (HTML with two inline SVG pictures;
   pictures are cached per label, so repeated entries are cheaper than first visits);
 * ``search 50``: ``/search?q=...&limit=50`` for a query drawn from a small set;
 * ``api``: ``/api/classes?q=...&limit=50`` or ``/api/classes/ID``.
+
+Two more runs put those figures in context:
+
+* ``one client``: the same loop with a single client for ``--seconds / 3`` seconds: the time one
+  request costs the server when nothing waits, per kind;
+* ``floor``: the same ``--clients`` clients asking only for ``/robots.txt`` (a constant text)
+  for ``--seconds / 3`` seconds: what the HTTP stack, the clients and the machine cost per request
+  at that concurrency, below which no page can answer.
 
 Without ``--sqlite`` an area-100 SQLite catalog is built in a temporary folder; with
 ``--postgres URL`` (a server URL) a database ``zoo_bench_web`` is created there, built to the
@@ -59,10 +68,11 @@ def free_port() -> int:
 
 
 @contextmanager
-def server(location: str) -> Iterator[str]:
+def server(location: str, workers: int) -> Iterator[str]:
     port = free_port()
+    command = [str(Path(sys.executable).parent / "zoo"), "serve", "--db", location]
     process = subprocess.Popen(
-        [str(Path(sys.executable).parent / "zoo"), "serve", "--db", location, "--port", str(port)],
+        [*command, "--port", str(port), "--workers", str(workers)],
         stdout=subprocess.DEVNULL,
         stderr=subprocess.PIPE,
     )
@@ -93,6 +103,9 @@ def build(location: str, max_area: int) -> list[str]:
         return [e.id for e in catalog.iter_entries()]
 
 
+KINDS = ("entry page", "search 50", "api")
+
+
 async def client(
     url: str, ids: list[str], stop: float, seed: int, times: dict[str, list[float]],
     errors: dict[str, int],
@@ -100,9 +113,11 @@ async def client(
     chooser = random.Random(seed)
     async with httpx.AsyncClient(base_url=url, timeout=30) as http:
         while time.perf_counter() < stop:
-            for kind in ("entry page", "search 50", "api"):
+            for kind in times:
                 query = chooser.choice(QUERIES)
-                if kind == "entry page":
+                if kind == "floor":
+                    address, params = "/robots.txt", None
+                elif kind == "entry page":
                     address, params = f"/classes/{chooser.choice(ids)}", None
                 elif kind == "search 50":
                     address, params = "/search", {"q": query, "limit": 50}
@@ -126,12 +141,13 @@ def percentile(values: list[float], fraction: float) -> float:
     return ordered[min(len(ordered) - 1, int(fraction * len(ordered)))]
 
 
-async def load(url: str, ids: list[str], clients: int, seconds: float) -> None:
-    times: dict[str, list[float]] = {"entry page": [], "search 50": [], "api": []}
+async def load(
+    url: str, ids: list[str], clients: int, seconds: float, kinds: tuple[str, ...] = KINDS
+) -> None:
+    times: dict[str, list[float]] = {kind: [] for kind in kinds}
     errors = dict.fromkeys(times, 0)
     stop = time.perf_counter() + seconds
     await asyncio.gather(*(client(url, ids, stop, n, times, errors) for n in range(clients)))
-    print(f"  {'request':<12} {'count':>7} {'p50 ms':>8} {'p99 ms':>8} {'errors':>7}")
     for kind, values in times.items():
         print(
             f"  {kind:<12} {len(values):>7} {statistics.median(values) * 1000:>8.1f} "
@@ -141,13 +157,53 @@ async def load(url: str, ids: list[str], clients: int, seconds: float) -> None:
     print(f"  {total / seconds:.1f} requests/s over {seconds:.0f} s, {clients} clients")
 
 
+def search_split(location: str) -> None:
+    """Per query, in this process and without load: what ``Catalog.find`` costs (the catalog's
+    part) against the whole search page (find plus the page's rows and template), best of 5."""
+    from urllib.parse import urlencode
+
+    from starlette.requests import Request
+
+    from zoo.web import answers, pages
+    from zoo.web.app import create_app
+
+    app = create_app(location)
+    print("  search split, one request at a time (best of 5):")
+    for query in QUERIES:
+        scope = {
+            "type": "http", "method": "GET", "path": "/search", "headers": [], "app": app,
+            "query_string": urlencode({"q": query, "limit": 50}).encode(), "path_params": {},
+        }  # fmt: skip
+        finds, whole = [], []
+        for _ in range(5):
+            started = time.perf_counter()
+            answers.search(app.state.catalog, query, limit=50)
+            middle = time.perf_counter()
+            pages.search_page(Request(scope))
+            finds.append(middle - started)
+            whole.append(time.perf_counter() - middle)
+        print(
+            f"    {query or '(empty)':<30} find {min(finds) * 1000:6.1f} ms, "
+            f"whole page {min(whole) * 1000:6.1f} ms"
+        )
+    app.state.catalog.close()
+
+
 def run(name: str, location: str, args: argparse.Namespace) -> None:
     print(f"{name}:")
     ids = build(location, args.max_area)
-    print(f"  {len(ids):,} classes; load average before: {os.getloadavg()[0]:.2f}")
-    with server(location) as url:
+    search_split(location)
+    print(f"  {len(ids):,} classes; {args.workers} server processes")
+    with server(location, args.workers) as url:
+        print(f"  {'request':<12} {'count':>7} {'p50 ms':>8} {'p99 ms':>8} {'errors':>7}")
+        print(f"  load average before: {os.getloadavg()[0]:.2f}")
         asyncio.run(load(url, ids, args.clients, args.seconds))
-    print(f"  load average after: {os.getloadavg()[0]:.2f}")
+        print(f"  load average after: {os.getloadavg()[0]:.2f}")
+        print("  one client (no waiting):")
+        asyncio.run(load(url, ids, 1, args.seconds / 3))
+        print(f"  floor ({args.clients} clients, /robots.txt only):")
+        asyncio.run(load(url, ids, args.clients, args.seconds / 3, ("floor",)))
+        print(f"  load average at the end: {os.getloadavg()[0]:.2f}")
 
 
 def main() -> None:
@@ -157,6 +213,7 @@ def main() -> None:
     parser.add_argument("--max-area", type=int, default=100)
     parser.add_argument("--clients", type=int, default=16)
     parser.add_argument("--seconds", type=float, default=30)
+    parser.add_argument("--workers", type=int, default=1, help="zoo serve --workers")
     args = parser.parse_args()
     print(f"zoo serve under load; {os.cpu_count()} cores")
     run("SQLite", args.sqlite or str(Path(tempfile.mkdtemp()) / "catalog.sqlite3"), args)

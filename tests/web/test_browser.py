@@ -79,8 +79,22 @@ def test_entry_page_pictures_load(page: Any, live_url: str) -> None:
         picture = page.locator(f"#picture-{view} svg").first
         box = picture.bounding_box()
         assert box is not None and box["width"] > 200 and box["height"] > 100
-        # A drawn picture, not an empty frame: matplotlib's paths are inside.
-        assert picture.locator("path").count() > 10
+        # A drawn picture, not an empty frame: a C(alpha,beta,gamma,delta) of area A has A
+        # transitions and 2A places (Valk, "Petri's cycloids"), each a marker the browser laid
+        # out inside the picture, at a place of its own.
+        for prefix, count in (("transition", 12), ("place", 24)):
+            markers = picture.locator(f'[id^="{prefix}-"]')
+            assert markers.count() == count
+            boxes = [markers.nth(i).bounding_box() for i in range(count)]
+            assert all(b is not None and b["width"] > 1 and b["height"] > 1 for b in boxes)
+            assert all(
+                box["x"] <= b["x"] <= box["x"] + box["width"]
+                and box["y"] <= b["y"] <= box["y"] + box["height"]
+                for b in boxes
+                if b is not None
+            )
+            centres = {(round(b["x"]), round(b["y"])) for b in boxes if b is not None}
+            assert len(centres) == count
     assert page.locator("text=Members (6)").count() == 1
     assert page.locator(".citation").inner_text().count("CY12-3") == 1
 

@@ -135,6 +135,14 @@ def test_downloads_are_the_net_of_the_class(live_url: str) -> None:
     dot = httpx.get(f"{live_url}/classes/CY4-1/net.dot").text
     (graph,) = pydot.graph_from_dot_data(dot)  # pydot as the reference reader of DOT
     assert len(graph.get_edges()) == 16  # each place: one arc in, one arc out
+    page = httpx.get(f"{live_url}/classes/CY4-1").text
+    for view in ("parallelogram", "net"):
+        svg = httpx.get(f"{live_url}/classes/CY4-1/{view}.svg")
+        assert svg.headers["content-type"].startswith("image/svg+xml")
+        ids = [e.get("id", "") for e in ET.fromstring(svg.content).iter()]
+        assert sum(i.startswith("transition-") for i in ids) == 4
+        assert sum(i.startswith("place-") for i in ids) == 8
+        assert svg.text.strip() in page  # the picture inline on the entry page is this file
     bib = httpx.get(f"{live_url}/classes/CY4-1/cite.bib").text
     assert bib.startswith("@misc{zoo:CY4-1,")
     csv_text = httpx.get(f"{live_url}/search.csv", params={"q": "area <= 4"}).text

@@ -33,14 +33,20 @@ def test_serve_refuses_a_bad_port(web_catalog: str) -> None:
     assert result.exit_code == 1 and "--port must be between 1 and 65535" in result.stderr
 
 
-def test_zoo_serve_answers_on_loopback(web_catalog: str) -> None:
+def test_serve_refuses_a_bad_worker_count(web_catalog: str) -> None:
+    result = runner.invoke(app, ["serve", "--db", web_catalog, "--workers", "0"])
+    assert result.exit_code == 1 and "--workers must be between 1 and" in result.stderr
+
+
+@pytest.mark.parametrize("workers", [1, 2])
+def test_zoo_serve_answers_on_loopback(web_catalog: str, workers: int) -> None:
     with socket.socket() as s:
         s.bind(("127.0.0.1", 0))
         port = s.getsockname()[1]
     command = shutil.which("zoo", path=str(Path(sys.executable).parent))
     assert command is not None
     process = subprocess.Popen(
-        [command, "serve", "--db", web_catalog, "--port", str(port)],
+        [command, "serve", "--db", web_catalog, "--port", str(port), "--workers", str(workers)],
         stderr=subprocess.PIPE,
         text=True,
     )
@@ -54,9 +60,14 @@ def test_zoo_serve_answers_on_loopback(web_catalog: str) -> None:
                 assert process.poll() is None and time.monotonic() < deadline
                 time.sleep(0.2)
         assert answer.status_code == 200 and answer.json()["label"] == "C(1,2,1,1)"
+        # Every process answers from the same catalog: a page that needs it, several times.
+        for _ in range(4):
+            page = httpx.get(f"http://127.0.0.1:{port}/classes/CY3-2", timeout=10)
+            assert page.status_code == 200 and 'id="picture-net"' in page.text
     finally:
         process.terminate()
         process.wait(timeout=20)
+    assert process.returncode is not None
 
 
 def test_identify_gives_up_after_its_time_limit(

@@ -5,6 +5,7 @@ A thin layer: it checks the options, opens the catalog read-only and runs uvicor
 
 from __future__ import annotations
 
+import os
 from pathlib import Path
 from typing import Annotated
 
@@ -15,6 +16,9 @@ from zoo.cli.options import ReadOnlyCatalogOption
 from zoo.errors import ParameterError, ZooError
 from zoo.version import DISTRIBUTION_NAME
 
+#: Most server processes ``--workers`` starts (each holds its own catalog connections).
+MAX_WORKERS = 64
+
 
 @app.command("serve")
 def serve(
@@ -23,19 +27,30 @@ def serve(
         str, typer.Option("--host", help="Address to listen on (loopback unless you mean it).")
     ] = "127.0.0.1",
     port: Annotated[int, typer.Option("--port", "-p", help="Port to listen on.")] = 8000,
+    workers: Annotated[
+        int,
+        typer.Option(
+            "--workers",
+            "-w",
+            help="Server processes answering in parallel (one per CPU core is a good start); "
+            "each opens the catalog read-only itself.",
+        ),
+    ] = 1,
 ) -> None:
     """Serve the catalog in the browser: search, entry pages, pictures, downloads, identify,
     and a JSON API (/api/openapi.json). Read-only; stop with Ctrl-C.
 
-    Example: zoo serve --db catalog.sqlite3 --port 8000
+    Example: zoo serve --db catalog.sqlite3 --port 8000 --workers 2
     """
     try:
         if not 0 < port < 65536:
             raise ParameterError(f"--port must be between 1 and 65535, got {port}")
+        if not 1 <= workers <= MAX_WORKERS:
+            raise ParameterError(f"--workers must be between 1 and {MAX_WORKERS}, got {workers}")
         try:
             import uvicorn
 
-            from zoo.web.app import create_app
+            from zoo.web.app import SERVE_CATALOG_VARIABLE, create_app
         except ImportError as exc:
             raise ZooError(
                 f"the web catalog needs the 'web' extra ({exc.name} is missing); install it "
@@ -44,8 +59,30 @@ def serve(
         web_app = create_app(db)
     except ZooError as exc:
         raise fail(exc) from None
-    typer.echo(f"Serving the catalog at http://{host}:{port}/ (read-only); Ctrl-C stops.", err=True)
-    uvicorn.run(web_app, host=host, port=port, log_level="warning")
+    typer.echo(
+        f"Serving the catalog at http://{host}:{port}/ (read-only"
+        + (f", {workers} processes" if workers > 1 else "")
+        + "); Ctrl-C stops.",
+        err=True,
+    )
+    if workers == 1:
+        uvicorn.run(web_app, host=host, port=port, log_level="warning")
+        return
+    # Several processes: uvicorn starts each from an import string, so each one opens the
+    # catalog it is told of through the environment (checked above, in this process).
+    web_app.state.catalog.close()
+    if db is None:
+        os.environ.pop(SERVE_CATALOG_VARIABLE, None)  # the default catalog, as resolved here
+    else:
+        os.environ[SERVE_CATALOG_VARIABLE] = db
+    uvicorn.run(
+        "zoo.web.app:create_app_from_environment",
+        factory=True,
+        host=host,
+        port=port,
+        workers=workers,
+        log_level="warning",
+    )
 
 
 @app.command("site")

@@ -61,6 +61,18 @@ class SearchPage:
             return "" if value is None else str(value)
         return default_cell(entry, name)
 
+    def table(self) -> list[dict[str, str]]:
+        """The display text of every column, one dict per row of the page: each entry's
+        invariants are decoded once for the row, not once per cell."""
+        rows: list[dict[str, str]] = []
+        for index, entry in enumerate(self.entries):
+            if self.custom:
+                rows.append({name: self.cell(index, name) for name in self.columns})
+            else:
+                invariants = entry.invariants
+                rows.append({n: default_cell(entry, n, invariants) for n in self.columns})
+        return rows
+
     def items(self) -> list[dict[str, Any]]:
         """The rows as ``zoo find --format json`` prints them."""
         objects: list[dict[str, Any]] = []
@@ -89,13 +101,16 @@ class SearchPage:
         writer.writerow(["id", "label", "area", *names, "members"])
         for index, entry in enumerate(self.entries):
             at = self.offset + index
+            invariants = None if self.custom else entry.invariants
             writer.writerow(
                 [
                     entry.id,
                     entry.label,
                     entry.area,
                     *(
-                        self.result.cell(at, n) if self.custom else default_cell(entry, n)
+                        self.result.cell(at, n)
+                        if self.custom
+                        else default_cell(entry, n, invariants)
                         for n in names
                     ),
                     " ".join(str(p) for p in entry.members),
@@ -104,14 +119,15 @@ class SearchPage:
         return out.getvalue()
 
 
-def default_cell(entry: ClassEntry, name: str) -> str:
-    """The default columns of ``zoo find``, read from the loaded entry."""
+def default_cell(entry: ClassEntry, name: str, invariants: dict[str, object] | None = None) -> str:
+    """The default columns of ``zoo find``, read from the loaded entry (``invariants``: its
+    ``entry.invariants`` when the caller has them already; decoding them is not free)."""
     if name == "frame":
         return entry.frame_id
     if name == "processes":
         values = sorted({int(str(r["processes"])) for r in entry.readings})
         return str(values[0]) if len(values) == 1 else f"{values[0]}..{values[-1]}"
-    value = entry.invariants.get(name)
+    value = (entry.invariants if invariants is None else invariants).get(name)
     return "" if value is None else str(value)
 
 

@@ -7,6 +7,7 @@ path taken from a request ever reaches the file system.
 
 from __future__ import annotations
 
+import os
 from dataclasses import dataclass
 from importlib import resources
 
@@ -37,6 +38,9 @@ SECURITY_HEADERS = (
     (b"cross-origin-opener-policy", b"same-origin"),
     (b"permissions-policy", b"camera=(), microphone=(), geolocation=()"),
 )
+_OURS = frozenset(name for name, _ in SECURITY_HEADERS)
+#: How ``zoo serve --workers N`` tells its server processes which catalog to open.
+SERVE_CATALOG_VARIABLE = "ZOO_SERVE_CATALOG"
 #: Largest request body (an upload plus the multipart envelope).
 MAX_BODY_BYTES = MAX_UPLOAD_BYTES + 64 * 1024
 
@@ -60,9 +64,7 @@ class SecurityHeaders:
 
         async def send_with_headers(message: Message) -> None:
             if message["type"] == "http.response.start":
-                headers = [
-                    (k, v) for k, v in message.get("headers", []) if k not in dict(SECURITY_HEADERS)
-                ]
+                headers = [(k, v) for k, v in message.get("headers", []) if k not in _OURS]
                 message = {**message, "headers": [*headers, *SECURITY_HEADERS]}
             await send(message)
 
@@ -179,4 +181,16 @@ def create_app(
     return app
 
 
-__all__ = ["CONTENT_SECURITY_POLICY", "MAX_BODY_BYTES", "create_app"]
+def create_app_from_environment() -> Starlette:
+    """The app of one server process of ``zoo serve --workers N``: the catalog named by
+    ``$ZOO_SERVE_CATALOG`` (unset: the default catalog, as ``zoo serve`` without ``--db``)."""
+    return create_app(os.environ.get(SERVE_CATALOG_VARIABLE))
+
+
+__all__ = [
+    "CONTENT_SECURITY_POLICY",
+    "MAX_BODY_BYTES",
+    "SERVE_CATALOG_VARIABLE",
+    "create_app",
+    "create_app_from_environment",
+]

@@ -15,6 +15,8 @@ _ENV = Environment(
     autoescape=select_autoescape(["html"]),
     trim_blocks=True,
     lstrip_blocks=True,
+    # Templates ship with the package: compile each once per process, never stat it again.
+    auto_reload=False,
 )
 _ENV.filters["number"] = lambda value: f"{value:,}" if isinstance(value, int) else str(value)
 
