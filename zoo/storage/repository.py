@@ -248,11 +248,13 @@ class CatalogReader:
             return ids, len(ids)
         if limit == 0:
             return [], self.query_count(node, seed)
-        # One pass: the window count is taken over every match before LIMIT applies.
-        rows = connection.execute(
-            statement.add_columns(func.count().over().label("total")).order_by(*order).limit(limit)
-        ).all()
-        return [row[0] for row in rows], int(rows[0][1]) if rows else 0
+        # Two statements in this one snapshot: the limited page can stop after ``limit`` rows
+        # in index order, where a window count would first collect and sort every match (an
+        # empty query on area 100: 0.6 ms against 16 ms, docs/web.md).
+        ids = [row[0] for row in connection.execute(statement.order_by(*order).limit(limit))]
+        if len(ids) < limit:
+            return ids, len(ids)
+        return ids, self.query_count(node, seed)
 
     def query_count(self, node: Any, seed: str | None) -> int:
         statement = _matching_statement(node, seed)
