@@ -48,27 +48,30 @@ def entry_report(catalog: Catalog, ref: str) -> dict[str, Any]:
     report["complete_to"] = complete_to
     report.update(iteration_links(catalog, parse_params(entry.label), complete_to))
     report["behaviour"] = behaviour_report(
-        catalog, entry.behaviour_id, cast(dict[str, Any], report["behaviour"])
+        catalog,
+        entry.behaviour_id,
+        cast(dict[str, Any], report["behaviour"]),
+        int(str(report["states"])),
     )
     return report
 
 
 def behaviour_report(
-    catalog: Catalog, behaviour_id: str | None, stored: dict[str, Any]
+    catalog: Catalog, behaviour_id: str | None, stored: dict[str, Any], states: int
 ) -> dict[str, Any]:
     """The entry's ``behaviour`` object: its behaviour identifier, how many stored classes
     share it (``count``), the evidence, every class of it in catalog order (``classes``), and
     whether that list is complete (every member of a behaviour class of s states has area at
     most s, so it is once the catalog is named up to area s). Without an identifier (above
-    the catalog's state bound) ``classes`` is null and ``state_bound`` says the bound."""
+    the catalog's state bound) ``classes`` is null and ``state_bound`` says the bound. Every
+    class of a behaviour class has the entry's number of ``states``."""
     from zoo.catalog.behaviour import STATE_BOUND_KEY
 
     bound = catalog.info().get(STATE_BOUND_KEY)
     report = {**stored, "state_bound": int(bound) if bound is not None else None}
     if behaviour_id is None:
         return {**report, "classes": None, "complete": None}
-    classes = catalog.behaviour_members(behaviour_id)
-    states = int(catalog.get(classes[0]).value("states")) if classes else 0  # type: ignore[arg-type]
+    classes = catalog.behaviour_members(behaviour_id)  # all with the entry's ``states``
     return {**report, "classes": classes, "complete": catalog.behaviour_complete_to() >= states}
 
 
