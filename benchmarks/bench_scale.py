@@ -8,12 +8,17 @@ Prints figures; not a timed test. Run from the repository root::
 In one run it measures, each build in a fresh process and a fresh temporary SQLite file:
 
 1. a single-process build to 60: wall, CPU per stage (algebra, nauty with its input, writer),
-   and nauty's own calls alone for the same forms (graphs built beforehand), and the ratio;
+   and nauty's own calls alone for the same forms (graphs built beforehand: one
+   ``canon_label`` run per form, and the ``autgrp`` run the build no longer makes), and the
+   ratio;
 2. the build to 100 (and 200, 300 with the flags): wall, CPU per stage, peak memory, size;
 3. the build to 100 with ``--jobs 2`` and with ``--cluster local:2`` (Dask);
 4. the former explicit-net path against the fast path on a small bound (``--old-area``);
-5. the classification cost per area read from the ``areas`` table of the largest build,
-   fitted as c * A^k, and the build of every area up to 1,000 predicted from it.
+5. the classification CPU of single areas (``--sample-areas``, up to 300) beside nauty's own
+   run for each of their forms, both fitted as c * A^k: the builds to 200 and 300 and their
+   floor (nauty's runs alone on two cores), and every area up to 1,000 predicted from it.
+
+The machine's load average is printed with the figures: the machine is shared.
 """
 
 from __future__ import annotations
@@ -87,17 +92,11 @@ def build(max_area: int, jobs: int = 1, cluster: str | None = None) -> dict[str,
     return result
 
 
-def nauty_alone(max_area: int) -> dict[str, float]:
-    """CPU seconds of nauty's own calls for the forms a build to ``max_area`` makes.
-
-    The graphs are built beforehand as pynauty graphs; ``canon_label`` is nauty's one run per
-    form (the labelling, which is all nauty must do), ``autgrp`` the second run that the build
-    made before it read the group order from the same run (``zoo.core.nautycall``).
-    """
-    import pynauty
-
+def _recorded_forms(areas: list[int]) -> tuple[list[Any], float]:
+    """Classify ``areas``, recording the nauty input of every form the classification makes;
+    returns the inputs and the CPU seconds of the classification itself."""
     from zoo.catalog.classify import classify_area
-    from zoo.core import canonical, nautycall
+    from zoo.core import canonical
     from zoo.core.net import build_net
 
     wanted: list[tuple[Any, bool]] = []
@@ -110,9 +109,11 @@ def nauty_alone(max_area: int) -> dict[str, float]:
         wanted.append((p, False))
         return canonical.cycloid_form(p, False)
 
-    for area in range(1, max_area + 1):
+    started = time.process_time()
+    for area in areas:
         classify_area(area, system_form=system, net_form=net)
-    inputs = []
+    seconds = time.process_time() - started
+    inputs: list[Any] = []
     for p, marked in wanted:
         if canonical._may_have_twins(p):
             encoding = canonical.encoding_graph(build_net(p), marked)
@@ -120,11 +121,36 @@ def nauty_alone(max_area: int) -> dict[str, float]:
         else:
             incidence = canonical._grid_incidence(p, marked)
             inputs.append(canonical._grid_nauty_input(*incidence, p.area))
+    return inputs, seconds
+
+
+def _canon_label_seconds(inputs: list[Any]) -> float:
+    """CPU seconds of nauty's one run per form (pynauty's canon_label), graphs built before."""
+    import pynauty
+
+    from zoo.core import nautycall
+
     graphs = [nautycall._pynauty_graph(*nauty_input) for nauty_input in inputs]
     started = time.process_time()
     for graph in graphs:
         pynauty.canon_label(graph)
-    labelling = time.process_time() - started
+    return time.process_time() - started
+
+
+def nauty_alone(max_area: int) -> dict[str, float]:
+    """CPU seconds of nauty's own calls for the forms a build to ``max_area`` makes.
+
+    The graphs are built beforehand as pynauty graphs; ``canon_label`` is nauty's one run per
+    form (the labelling, which is all nauty must do), ``autgrp`` the second run that the build
+    made before it read the group order from the same run (``zoo.core.nautycall``).
+    """
+    import pynauty
+
+    from zoo.core import nautycall
+
+    inputs, _seconds = _recorded_forms(list(range(1, max_area + 1)))
+    labelling = _canon_label_seconds(inputs)
+    graphs = [nautycall._pynauty_graph(*nauty_input) for nauty_input in inputs]
     started = time.process_time()
     for graph in graphs:
         pynauty.autgrp(graph)
@@ -150,31 +176,29 @@ def old_against_fast(max_area: int) -> tuple[float, float]:
     return old, time.process_time() - started
 
 
-def sample_costs(areas: list[int]) -> list[tuple[int, float, int, int]]:
-    """CPU seconds of classifying single areas (area, seconds, parameter sets, classes)."""
-    from zoo.catalog.classify import classify_area
-
+def sample_costs(areas: list[int]) -> list[tuple[int, float, int, float]]:
+    """Per area: (area, classification CPU s, nauty forms, nauty's own CPU s for them)."""
     costs = []
     for area in areas:
-        started = time.process_time()
-        result = classify_area(area)
-        seconds = time.process_time() - started
-        costs.append((area, seconds, result.parameter_set_count, len(result.classes)))
+        inputs, seconds = _recorded_forms([area])
+        nauty = _canon_label_seconds(inputs)
+        costs.append((area, seconds, len(inputs), nauty))
         print(
-            f"  area {area}: {seconds:.2f} s CPU, {result.parameter_set_count:,} parameter sets, "
-            f"{len(result.classes):,} classes, {result.canonical_forms:,} nauty forms",
+            f"  area {area}: classification {seconds:.2f} s CPU, {len(inputs):,} nauty forms; "
+            f"nauty alone {nauty:.2f} s ({1000 * nauty / len(inputs):.1f} ms per form, "
+            f"{100 * nauty / seconds:.0f}% of the classification)",
             flush=True,
         )
     return costs
 
 
-def fit(per_area: list[tuple[int, float, int, int]], low: int) -> tuple[float, float]:
-    """Least squares of log(seconds) = log(c) + k log(A) over areas >= low."""
-    points = [(math.log(a), math.log(s)) for a, s, _n, _c in per_area if a >= low and s > 0]
-    n = len(points)
-    mx = sum(x for x, _ in points) / n
-    my = sum(y for _, y in points) / n
-    k = sum((x - mx) * (y - my) for x, y in points) / sum((x - mx) ** 2 for x, _ in points)
+def fit(points: list[tuple[int, float]]) -> tuple[float, float]:
+    """Least squares of log(seconds) = log(c) + k log(A) over (area, seconds) points."""
+    logs = [(math.log(a), math.log(s)) for a, s in points if s > 0]
+    n = len(logs)
+    mx = sum(x for x, _ in logs) / n
+    my = sum(y for _, y in logs) / n
+    k = sum((x - mx) * (y - my) for x, y in logs) / sum((x - mx) ** 2 for x, _ in logs)
     return math.exp(my - k * mx), k
 
 
@@ -208,7 +232,9 @@ def main() -> None:
     parser.add_argument("--old-area", type=int, default=30, help="bound of the old-path check")
     parser.add_argument("--machines", type=int, nargs="*", default=[1, 4, 16])
     parser.add_argument("--cores", type=int, default=2, help="worker processes per machine")
-    parser.add_argument("--sample-areas", type=int, nargs="*", default=[60, 80, 100, 120, 150, 200])
+    parser.add_argument(
+        "--sample-areas", type=int, nargs="*", default=[60, 80, 100, 120, 150, 200, 250, 300]
+    )
     parser.add_argument(
         "--parts",
         nargs="*",
@@ -261,8 +287,18 @@ def main() -> None:
     )
     print(f"classification CPU of single areas (load {_load()}):")
     samples = sample_costs(args.sample_areas)
-    c, k = fit(samples, 0)
+    c, k = fit([(a, seconds) for a, seconds, _f, _n in samples])
+    nc, nk = fit([(a, nauty) for a, _s, _f, nauty in samples])
     print(f"cost per area, fitted on those: {c:.3g} * A^{k:.2f} s CPU")
+    print(f"nauty's own cost per area (one run per form): {nc:.3g} * A^{nk:.2f} s CPU")
+    for bound in (200, 300):
+        cpu = sum(c * a**k for a in range(1, bound + 1))
+        floor = sum(nc * a**nk for a in range(1, bound + 1))
+        print(
+            f"  build to {bound} by the fits: classification {cpu:.0f} s CPU ({cpu / 2:.0f} s wall "
+            f"on 2 cores), of which nauty's own runs {floor:.0f} s CPU: the floor is "
+            f"{floor / 2:.0f} s wall on 2 cores"
+        )
     if biggest is not None:
         per_area = biggest["per_area"]
         top = per_area[-1][0]

@@ -425,25 +425,19 @@ def _grid_incidence(p: ParameterSet, marked: bool) -> tuple[_Ints, _Ints, _Ints]
     key = lattice_key(p)
     a, g, period, r = key.area, key.g, key.period, key.r
     own = np.arange(a)
-    xi = own % period
-    eta = own // period
-    forward = own - xi + (xi + 1) % period
-    backward = np.where(eta + 1 < g, own + period, (xi - r) % period)
+    forward = own + 1  # (xi + 1, eta), wrapping at the end of each row
+    forward[period - 1 :: period] -= period
+    backward = own + period  # (xi, eta + 1), and (xi - r, 0) from the top row
+    backward[a - period :] = (np.arange(period) - r) % period
     pre = np.concatenate((own, own))
     post = np.concatenate((forward, backward))
     if not marked:
         return pre, post, np.zeros(2 * a, dtype=np.int64)
     alpha, beta = p.alpha, p.beta
-    levels = (beta * xi + alpha * eta) % a
-    forward_level = (levels + beta) % a
-    backward_level = (levels + alpha) % a
-    tokens = np.concatenate(
-        (
-            (forward_level >= 1) & (forward_level <= beta),
-            (backward_level >= 1) & (backward_level <= alpha),
-        )
-    ).astype(np.int64)
-    return pre, post, tokens
+    levels = np.add.outer(alpha * np.arange(g), beta * np.arange(period)).ravel()
+    # L mod A in 1..beta iff (L - 1) mod A < beta, as beta < A (likewise alpha).
+    tokens = np.concatenate(((levels + (beta - 1)) % a < beta, (levels + (alpha - 1)) % a < alpha))
+    return pre, post, tokens.astype(np.int64)
 
 
 def _may_have_twins(p: ParameterSet) -> bool:
