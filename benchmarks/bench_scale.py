@@ -41,6 +41,25 @@ def _peak_mb(who: int) -> float:
     return resource.getrusage(who).ru_maxrss / 1024  # kilobytes on Linux
 
 
+def _children_cpu() -> float:
+    """CPU seconds of the worker processes this process started and waited for."""
+    usage = resource.getrusage(resource.RUSAGE_CHILDREN)
+    return usage.ru_utime + usage.ru_stime
+
+
+def _own_peak_mb() -> float:
+    """This process's peak resident memory. Linux keeps ru_maxrss across exec, so a spawned
+    process would report the peak of the benchmark that forked it; VmHWM starts afresh."""
+    try:
+        with open("/proc/self/status") as status:
+            for line in status:
+                if line.startswith("VmHWM:"):
+                    return int(line.split()[1]) / 1024
+    except OSError:
+        pass
+    return _peak_mb(resource.RUSAGE_SELF)
+
+
 def _build_in_child(max_area: int, jobs: int, cluster: str | None, path: str) -> dict[str, Any]:
     """One build into ``path``; runs in a spawned process, so its peak memory is its own."""
     from sqlalchemy import text
@@ -62,7 +81,8 @@ def _build_in_child(max_area: int, jobs: int, cluster: str | None, path: str) ->
         "wall": report.wall_seconds,
         "stages": dict(report.stage_seconds),
         "writer_cpu": time.process_time() - cpu,
-        "peak_writer_mb": _peak_mb(resource.RUSAGE_SELF),
+        "peak_writer_mb": _own_peak_mb(),
+        "workers_cpu": _children_cpu(),
         "peak_child_mb": _peak_mb(resource.RUSAGE_CHILDREN),
         "size_mb": Path(path).stat().st_size / 1e6,
         "parameter_sets": report.parameter_sets,
@@ -217,11 +237,13 @@ def _stages(result: dict[str, Any]) -> str:
 
 def _line(label: str, r: dict[str, Any]) -> str:
     return (
-        f"{label}: wall {r['wall']:.1f} s, CPU of the writer process {r['writer_cpu']:.1f} s "
+        f"{label}: wall {r['wall']:.1f} s, CPU of the writer process {r['writer_cpu']:.1f} s, "
+        f"of its workers {r['workers_cpu']:.1f} s "
         f"({_stages(r)}, wall per stage); peak memory writer "
         f"{r['peak_writer_mb']:.0f} MB, workers {r['peak_child_mb']:.0f} MB; catalog "
         f"{r['size_mb']:.1f} MB; {r['parameter_sets']:,} parameter sets, {r['classes']:,} "
-        f"classes, {r['frames']:,} frames, {r['forms']:,} nauty forms"
+        f"classes, {r['frames']:,} frames, {r['forms']:,} nauty forms; load average at the "
+        f"end {_load()}"
     )
 
 
