@@ -182,3 +182,13 @@ def test_cells_must_partition_the_vertices() -> None:
         nautycall.canonical_run(3, [0], [1], [{0, 1}])
     with pytest.raises(ValueError, match="partition"):
         nautycall.canonical_run(3, [0], [1], [{0, 1}, {1, 2}])
+
+
+def test_unknown_nauty_version_falls_back(monkeypatch: pytest.MonkeyPatch) -> None:
+    # Structures of another nauty could crash it: the single run is not even tried.
+    expected = forms(ParameterSet(3, 3, 2, 2))
+    monkeypatch.setattr(pynauty, "_nauty_version", "nauty2_9_0")
+    monkeypatch.setattr(nautycall, "_ENGINE", None)
+    monkeypatch.setattr(nautycall, "_STATUS", None)
+    assert forms(ParameterSet(3, 3, 2, 2)) == expected
+    assert "pynauty ships nauty2_9_0" in nautycall.single_run_status()

@@ -53,6 +53,9 @@ __all__ = [
 
 _log = logging.getLogger(__name__)
 
+#: nauty versions (pynauty's ``_nauty_version``) whose nauty.h has the structures below; add
+#: one only after comparing its ``optionblk`` and ``statsblk`` with them.
+_KNOWN_NAUTY = ("nauty2_8_8",)
 #: Workspace per row of the graph, in setwords, as pynauty allocates it (nautywrap.h).
 _WORKSPACE_FACTOR = 66
 
@@ -270,6 +273,10 @@ def _engine() -> _Engine | None:
         import pynauty
         from pynauty import nautywrap
 
+        # A struct that does not match would crash nauty before any check could run.
+        shipped = getattr(pynauty, "_nauty_version", "an unknown nauty")
+        if shipped not in _KNOWN_NAUTY:
+            raise OSError(f"pynauty ships {shipped}; the structures here are nauty 2.8.8's")
         # The word size is the length of a 1-vertex certificate: one setword (nautywrap.c).
         wordsize = 8 * len(pynauty.certificate(pynauty.Graph(1)))
         if wordsize not in (32, 64):
