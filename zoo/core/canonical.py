@@ -7,11 +7,11 @@ levels are those of docs/theory/isomorphism.md: ``system_form`` (marked, untyped
 ``net_form`` (unmarked, untyped) decides frames.
 
 The net goes to nauty (McKay and Piperno, "Practical graph isomorphism II", J. Symbolic
-Computation 60 (2014), through pynauty) as an *undirected* coloured graph, because nauty's
-directed mode is pathologically slow on these nets (docs/architecture.md): a vertex per transition,
-and
-each place split into a tail vertex (adjacent to its input transition) and a head vertex
-(adjacent to its output transition) joined by an edge. The text is read off nauty's canonical
+Computation 60 (2014), the nauty that pynauty ships, one run per form: ``zoo.core.nautycall``)
+as an *undirected* coloured graph, because nauty's directed mode is pathologically slow on
+these nets (docs/architecture.md): a vertex per transition, and each place split into a tail
+vertex (adjacent to its input transition) and a head vertex (adjacent to its output transition)
+joined by an edge. The text is read off nauty's canonical
 labelling and never contains nauty's raw certificate, whose bytes depend on the machine word
 size. docs/canonical-encoding.md is the normative description; ``ENCODING_VERSION`` names it.
 """
@@ -24,6 +24,10 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 from math import factorial
 
+import numpy as np
+import numpy.typing as npt
+
+from zoo.core import nautycall
 from zoo.core.net import CycloidNet, MarkedGraph, build_net
 from zoo.core.params import ParameterSet
 from zoo.errors import FormatError, LimitExceeded
@@ -245,7 +249,21 @@ def encoding_graph(
     )
 
 
+def _nauty_input(
+    encoding: EncodingGraph,
+) -> tuple[int, list[int], list[int], list[set[int]]]:
+    """(n, tails, heads, cells) of the encoding for ``nautycall.canonical_run``.
+
+    The cells are sets, read in their iteration order as pynauty reads its ``vertex_coloring``,
+    so the labelling is the one pynauty's ``canon_label`` gives for ``_nauty_graph``.
+    """
+    tails = [u for u, _ in encoding.edges]
+    heads = [v for _, v in encoding.edges]
+    return encoding.vertex_count, tails, heads, [set(cell) for cell in encoding.cells]
+
+
 def _nauty_graph(encoding: EncodingGraph) -> object:
+    """The pynauty graph of the encoding: the outside reference in tests and benchmarks."""
     import pynauty
 
     adjacency: dict[int, list[int]] = {}
@@ -260,24 +278,29 @@ def _nauty_graph(encoding: EncodingGraph) -> object:
 
 
 def _exact_group_order(
-    generators: Sequence[Sequence[int]], mantissa: float, exponent: int, encoding: EncodingGraph
+    run: nautycall.NautyRun,
+    graph: nautycall.NautyInput,
+    encoding: EncodingGraph,
 ) -> int:
     """The exact order of the automorphism group of the encoding graph.
 
-    nauty multiplies grpsize1 by whole numbers and moves a factor 10^10 into grpsize2 whenever
-    grpsize1 reaches 10^10 (nauty user guide, "statsblk"), so with grpsize2 = 0 the double is
-    an exact integer below 10^10. Otherwise the order is recomputed exactly by Schreier-Sims
-    (sympy) on the generators, restricted to transitions and tails, on which the group acts
-    faithfully (each head hangs on exactly one tail), and checked against nauty's estimate.
+    With ``run.exact`` the order is nauty's double itself (``nautycall.NautyRun.exact``).
+    Otherwise it is recomputed exactly by Schreier-Sims (sympy) on the generators (the
+    fallback's, or a second nauty run on ``graph`` = (n, tails, heads, cells)), restricted to
+    transitions and tails, on which the group acts faithfully (each head hangs on exactly one
+    tail), and checked against nauty's estimate.
     """
-    if exponent == 0 and float(mantissa).is_integer():
-        return int(mantissa)
+    if run.exact:
+        return int(run.grpsize1)
     from sympy.combinatorics import Permutation, PermutationGroup
 
+    generators = run.generators
+    if generators is None:
+        generators = nautycall.automorphism_generators(*graph)
     keep = encoding.transition_count + encoding.place_count
     perms = [Permutation([g[i] for i in range(keep)]) for g in generators]
     order = int(PermutationGroup(perms).order())
-    approx = mantissa * 10.0**exponent
+    approx = run.grpsize1 * 10.0**run.grpsize2
     if abs(order - approx) > 1e-9 * approx:  # a disagreement would be a bug in one of the two
         raise ArithmeticError(f"group order {order} disagrees with nauty's {approx:g}")
     return order
@@ -345,20 +368,14 @@ def canonical_form(
     >>> canonical_form(net, typed=True).automorphisms  # gcd(4, 2), docs/theory/state-counts.md
     2
     """
-    import pynauty
-
     encoding = encoding_graph(graph, marked, typed, place_colours)
     colours = _place_colours(graph, typed, place_colours)
     tokens = graph.tokens if marked else (0,) * graph.place_count
     place_keys = tuple(zip(colours, tokens, strict=True))
-    if encoding.vertex_count == 0:
-        reduced_labelling: list[int] = []
-        order = 1
-    else:
-        nauty_graph = _nauty_graph(encoding)
-        reduced_labelling = list(pynauty.canon_label(nauty_graph))
-        generators, mantissa, exponent, _orbits, _count = pynauty.autgrp(nauty_graph)
-        order = _exact_group_order(generators, mantissa, exponent, encoding)
+    nauty_input = _nauty_input(encoding)
+    run = nautycall.canonical_run(*nauty_input)
+    reduced_labelling = run.labelling
+    order = _exact_group_order(run, nauty_input, encoding)
     number = _canonical_numbering(encoding, reduced_labelling)
     text, place_order = _canonical_text(graph, number, place_keys, marked, typed)
     n_t, n_p = graph.transition_count, graph.place_count
@@ -373,6 +390,8 @@ def canonical_form(
 
 
 # --- the fast path for cycloids: nauty's input straight from the lattice algebra -------------
+
+_Ints = npt.NDArray[np.int64]
 
 
 @dataclass(frozen=True)
@@ -389,7 +408,7 @@ class CycloidForm:
     automorphisms: int
 
 
-def _grid_incidence(p: ParameterSet, marked: bool) -> tuple[list[int], list[int], list[int]]:
+def _grid_incidence(p: ParameterSet, marked: bool) -> tuple[_Ints, _Ints, _Ints]:
     """(pre, post, tokens) of the net of C(p), transitions numbered on the Hermite grid.
 
     The transitions are the points (xi, eta), 0 <= xi < A/g, 0 <= eta < g, of the lattice key
@@ -398,32 +417,27 @@ def _grid_incidence(p: ParameterSet, marked: bool) -> tuple[list[int], list[int]
     (r, g) reduces to (xi - r, 0) on the top row. A place is marked iff the level
     L = beta*xi + alpha*eta of its output transition, taken mod A (L is A on (gamma, delta) and 0
     on (alpha, -beta), so it is well defined), lies in 1..beta (forward) or 1..alpha (backward),
-    as in ``build_net`` (docs/theory/initial-marking.md). Plain lists of ints: at these sizes
-    (2A places, A <= 1,200) they were measured faster than numpy arrays, whose per-call
-    overhead dominated.
+    as in ``build_net`` (docs/theory/initial-marking.md). Forward places are 0..A-1 (place j
+    leaves transition j), backward places A..2A-1 (place A + j leaves transition j).
     """
     from zoo.core.algebra import lattice_key
 
     key = lattice_key(p)
     a, g, period, r = key.area, key.g, key.period, key.r
-    forward: list[int] = []
-    backward: list[int] = []
-    for eta in range(g):
-        base = eta * period
-        forward.extend(range(base + 1, base + period))
-        forward.append(base)
-        if eta + 1 < g:
-            backward.extend(range(base + period, base + 2 * period))
-        else:
-            backward.extend((xi - r) % period for xi in range(period))
-    own = list(range(a))
+    own = np.arange(a)
+    forward = own + 1  # (xi + 1, eta), wrapping at the end of each row
+    forward[period - 1 :: period] -= period
+    backward = own + period  # (xi, eta + 1), and (xi - r, 0) from the top row
+    backward[a - period :] = (np.arange(period) - r) % period
+    pre = np.concatenate((own, own))
+    post = np.concatenate((forward, backward))
     if not marked:
-        return own + own, forward + backward, [0] * (2 * a)
+        return pre, post, np.zeros(2 * a, dtype=np.int64)
     alpha, beta = p.alpha, p.beta
-    levels = [(beta * xi + alpha * eta) % a for eta in range(g) for xi in range(period)]
-    tokens = [1 if 1 <= (level + beta) % a <= beta else 0 for level in levels]
-    tokens += [1 if 1 <= (level + alpha) % a <= alpha else 0 for level in levels]
-    return own + own, forward + backward, tokens
+    levels = np.add.outer(alpha * np.arange(g), beta * np.arange(period)).ravel()
+    # L mod A in 1..beta iff (L - 1) mod A < beta, as beta < A (likewise alpha).
+    tokens = np.concatenate(((levels + (beta - 1)) % a < beta, (levels + (alpha - 1)) % a < alpha))
+    return pre, post, tokens.astype(np.int64)
 
 
 def _may_have_twins(p: ParameterSet) -> bool:
@@ -440,34 +454,24 @@ def _may_have_twins(p: ParameterSet) -> bool:
     return lattice_key(p).contains((2, -2))
 
 
-def _grid_nauty_graph(
-    pre: list[int], post: list[int], tokens: list[int], a: int
-) -> tuple[object, int]:
-    """The pynauty graph of the encoding of a twin-free net, made without pynauty's checks.
+def _grid_nauty_input(pre: _Ints, post: _Ints, tokens: _Ints, a: int) -> nautycall.NautyInput:
+    """(n, tails, heads, cells) of the encoding of a twin-free net, as arrays.
 
-    The same graph as ``encoding_graph`` gives (one transition cell, then tails and heads
-    by place label, labels ascending: tokens 0 before 1) up to the order of vertices inside
-    a cell, which a canonical labelling does not see. pynauty's own constructor validates
-    every vertex in Python and took as long as nauty itself, so the fields it reads are set
-    directly (pynauty 2.8: number_of_vertices, directed, adjacency_dict, vertex_coloring).
+    The same graph as ``encoding_graph`` gives (one transition cell, then tails and heads by
+    place label, labels ascending: tokens 0 before 1) up to the order of vertices inside a
+    cell, which a canonical labelling does not see: transition t is vertex t, the tail of place
+    j is a + j and its head 3a + j.
     """
-    import pynauty
-
     places = 2 * a
-    first_head = a + places
-    adjacency = {a + j: [pre[j], first_head + j] for j in range(places)}
-    adjacency.update({first_head + j: [post[j]] for j in range(places)})
-    unmarked = [j for j, value in enumerate(tokens) if not value]
-    marked = [j for j, value in enumerate(tokens) if value]
-    cells: list[set[int]] = [set(range(a))]
-    for offset in (a, first_head):
-        cells.extend(set(map(offset.__add__, cell)) for cell in (unmarked, marked) if cell)
-    graph = pynauty.Graph.__new__(pynauty.Graph)
-    graph.number_of_vertices = a + 2 * places
-    graph.directed = False
-    graph._adjacency_dict = adjacency
-    graph._vertex_coloring = cells
-    return graph, a + 2 * places
+    tail = np.arange(a, a + places)
+    head = tail + places
+    tails = np.concatenate((pre, tail, head))
+    heads = np.concatenate((tail, head, post))
+    marked = tokens.astype(bool)
+    cells = [np.arange(a)]
+    for side in (tail, head):
+        cells.extend(cell for cell in (side[~marked], side[marked]) if len(cell))
+    return a + 2 * places, tails, heads, cells
 
 
 def cycloid_form(p: ParameterSet, marked: bool = True) -> CycloidForm:
@@ -482,8 +486,6 @@ def cycloid_form(p: ParameterSet, marked: bool = True) -> CycloidForm:
     >>> form.fingerprint == system_form(ParameterSet(4, 2, 2, 3)).fingerprint
     True
     """
-    import pynauty
-
     a = p.area
     if 5 * a > CANONICAL_LIMIT:
         raise LimitExceeded(
@@ -495,28 +497,24 @@ def cycloid_form(p: ParameterSet, marked: bool = True) -> CycloidForm:
         net = MarkedGraph(
             tuple(f"t{i}" for i in range(a)),
             tuple(f"p{j}" for j in range(2 * a)),
-            tuple(pre),
-            tuple(post),
-            tuple(tokens),
+            tuple(pre.tolist()),
+            tuple(post.tolist()),
+            tuple(tokens.tolist()),
         )
         form = canonical_form(net, marked=marked)
         return CycloidForm(form.text, form.fingerprint, form.automorphisms)
-    graph, n = _grid_nauty_graph(pre, post, tokens, a)
-    labelling = pynauty.canon_label(graph)
-    generators, mantissa, exponent, _orbits, _count = pynauty.autgrp(graph)
-    if exponent == 0 and float(mantissa).is_integer():
-        order = int(mantissa)
-    else:
-        encoding = EncodingGraph(a, 2 * a, (), (), (), (), 1)
-        order = _exact_group_order(generators, mantissa, exponent, encoding)
-    number = [0] * a
-    for position, vertex in enumerate(labelling[:a]):  # the transition cell comes first
-        number[vertex] = position
-    entries = sorted(zip([number[t] for t in pre], [number[t] for t in post], tokens, strict=True))
+    nauty_input = _grid_nauty_input(pre, post, tokens, a)
+    run = nautycall.canonical_run(*nauty_input)
+    order = _exact_group_order(run, nauty_input, EncodingGraph(a, 2 * a, (), (), (), (), 1))
+    number = np.empty(a, dtype=np.int64)
+    number[run.labelling[:a]] = np.arange(a)  # the transition cell comes first
+    source, target = number[pre], number[post]
+    entries = np.lexsort((tokens, target, source))  # places sorted by (pre, post, tokens)
+    pairs = zip(source[entries].tolist(), target[entries].tolist(), strict=True)
     if marked:
-        words = [f"{x}>{y}*{z}" for x, y, z in entries]
+        words = [f"{x}>{y}*{z}" for (x, y), z in zip(pairs, tokens[entries].tolist(), strict=True)]
     else:
-        words = [f"{x}>{y}" for x, y, _z in entries]
+        words = [f"{x}>{y}" for x, y in pairs]
     level = "system" if marked else "net"
     text = f"zoo-canon {ENCODING_VERSION} {level} untyped T={a} P={2 * a} | " + " ".join(words)
     fingerprint = f"{ENCODING_VERSION}:{hashlib.sha256(text.encode('ascii')).hexdigest()}"
