@@ -30,9 +30,21 @@ def test_find_on_an_empty_migrated_catalog_announces_the_build(
     # An empty schema counts as no catalog yet: the build is announced before it starts.
     lines = first.stderr.splitlines()
     assert lines[0] == (
-        f"No catalog at {location} yet: building areas 1..8 once (later queries answer at once)."
+        f"No catalog at {location} yet: building areas 1..8 once (later queries answer at "
+        "once; `zoo build` adds the behaviour classes)."
     )
     again = runner.invoke(app, ["find", "area < 5", "--db", location])
     assert again.exit_code == 0, again.output
     assert "building" not in again.stderr
     assert again.stdout == first.stdout
+    # The first answer left behaviour for later; `zoo build` names it without rebuilding.
+    pending = runner.invoke(app, ["find", "behaviour_count >= 1", "--db", location, "--count"])
+    assert pending.stdout.strip() == "0"
+    assert "named up to area 0" in pending.stderr
+    named = runner.invoke(app, ["build", "--max-area", "8", "--db", location, "--jobs", "2"])
+    assert named.exit_code == 0, named.output
+    assert "Named the behaviour classes of areas 1..8" in named.stdout
+    after = runner.invoke(app, ["find", "behaviour_count >= 1", "--db", location, "--count"])
+    assert int(after.stdout) == int(
+        runner.invoke(app, ["find", "", "--db", location, "--count"]).stdout
+    )  # every class of area <= 8 has at most 10^4 states

@@ -23,16 +23,23 @@ from zoo.core.params import parse_params
 from zoo.errors import CatalogError
 
 
-def name_behaviour(catalog: Catalog) -> list[int]:
+def name_behaviour(catalog: Catalog, jobs: int = 1) -> list[int]:
     """Give behaviour identifiers to the classes of every complete area not named yet, in
-    increasing area up to the first missing area; one transaction per area. Areas stored by
-    an older zoo (no behaviour keys) get their keys computed here. Returns the areas named."""
-    from zoo.core.behaviour import BEHAVIOUR_STATE_LIMIT, behaviour_key
+    increasing area up to the first missing area; one transaction per area. Classes stored
+    without a behaviour key (by an older zoo, or by a build that left behaviour for later) get
+    it computed here first, in ``jobs`` worker processes. Returns the areas named."""
+    from zoo.core.behaviour import BEHAVIOUR_STATE_LIMIT
 
     complete_to = catalog.complete_to()
     with catalog.repository.read() as reader:
         pending = [a for a in reader.behaviour_pending_areas() if a <= complete_to]
         bound = reader.info().get(STATE_BOUND_KEY)
+        unkeyed = [
+            (row.id, row.label, row.fingerprint)
+            for area in pending
+            for row in reader.behaviour_rows(area)
+            if row.behaviour_key is None
+        ]
     if not pending:
         return []
     if bound is not None and int(bound) != BEHAVIOUR_STATE_LIMIT:
@@ -41,6 +48,7 @@ def name_behaviour(catalog: Catalog) -> list[int]:
             f"zoo computes them up to {BEHAVIOUR_STATE_LIMIT:,}; build a new catalog with "
             "--db NEW_FILE"
         )
+    computed = _keys_of(unkeyed, jobs)
     named: list[int] = []
     for area in pending:
         with catalog.repository.write() as writer:
@@ -52,10 +60,8 @@ def name_behaviour(catalog: Catalog) -> list[int]:
             touched: list[str] = []
             for row in writer.behaviour_rows(area):
                 key, evidence = row.behaviour_key, row.behaviour_evidence
-                if key is None:  # above the bound, or stored before keys were computed
-                    found = behaviour_key(parse_params(row.label), row.fingerprint)
-                    if found is not None:
-                        key, evidence = found.key, found.evidence
+                if key is None:  # above the bound, or stored without keys
+                    key, evidence = computed.get(row.id, (None, None))
                 if key is None:
                     continue
                 holder = writer.behaviour_holder(key)
@@ -69,6 +75,29 @@ def name_behaviour(catalog: Catalog) -> list[int]:
             writer.recount_behaviour(touched)
         named.append(area)
     return named
+
+
+def _keys_of(
+    classes: list[tuple[str, str, str]], jobs: int
+) -> dict[str, tuple[str | None, str | None]]:
+    """The behaviour keys of (id, label, fingerprint) classes within the state bound, computed
+    in ``jobs`` worker processes (``zoo.catalog.build.in_workers``)."""
+    from zoo.catalog.build import in_workers
+    from zoo.core.behaviour import BEHAVIOUR_STATE_LIMIT
+    from zoo.core.invariants import reachable_state_count
+
+    within = [
+        c for c in classes if reachable_state_count(parse_params(c[1])) <= BEHAVIOUR_STATE_LIMIT
+    ]
+    return dict(in_workers(_key_of, within, jobs))
+
+
+def _key_of(item: tuple[str, str, str]) -> tuple[str, tuple[str | None, str | None]]:
+    from zoo.core.behaviour import behaviour_key
+
+    class_id, label, fingerprint = item
+    found = behaviour_key(parse_params(label), fingerprint)
+    return class_id, (found.key, found.evidence) if found is not None else (None, None)
 
 
 def _join_evidence(

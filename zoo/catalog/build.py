@@ -20,9 +20,10 @@ import signal
 import sys
 import threading
 import time
-from collections.abc import Iterator, Sequence
+from collections.abc import Callable, Iterator, Sequence
 from dataclasses import dataclass, field
-from typing import Protocol
+from functools import partial
+from typing import Protocol, TypeVar
 
 from zoo.catalog import service as catalog_service
 from zoo.catalog.behaviour import name_behaviour
@@ -54,6 +55,10 @@ __all__ = [
 ]
 
 
+T = TypeVar("T")
+R = TypeVar("R")
+
+
 @dataclass(frozen=True)
 class BuildReport:
     """What a build did: the areas it added and where the time went."""
@@ -72,6 +77,8 @@ class BuildReport:
     #: Areas this build classified but found stored by another build when it came to write
     #: them; the counts above leave them out.
     stored_elsewhere: tuple[int, ...] = ()
+    #: Areas whose classes this build gave behaviour identifiers to (docs/theory/behaviour.md).
+    behaviour_named: tuple[int, ...] = ()
 
     def added_text(self) -> str:
         """The areas this build stored: ``area 3`` or ``areas 1..2, 5..40``."""
@@ -111,14 +118,22 @@ def build_catalog(
     *,
     seeds: Sequence[Seed] | None = None,
     cluster: str | None = None,
+    behaviour: bool = True,
 ) -> BuildReport:
     """Store every area 1..max_area that is not stored yet; one transaction per area.
+
+    With ``behaviour`` (the default) the build also decides the behaviour of every class with
+    at most ``BEHAVIOUR_STATE_LIMIT`` states and names the behaviour classes
+    (``zoo.catalog.behaviour``), including those of areas stored earlier without it; without,
+    the areas are stored with their behaviour left for a later build.
 
     Holds the catalog's build lock while it runs (``zoo.storage.buildlock``), so that readers
     know a build is in progress and answer from what is complete instead of building too.
     """
     with build_lock(catalog.engine):
-        return _build_catalog(catalog, max_area, jobs, progress, seeds=seeds, cluster=cluster)
+        return _build_catalog(
+            catalog, max_area, jobs, progress, seeds=seeds, cluster=cluster, behaviour=behaviour
+        )
 
 
 def _build_catalog(
@@ -129,6 +144,7 @@ def _build_catalog(
     *,
     seeds: Sequence[Seed] | None = None,
     cluster: str | None = None,
+    behaviour: bool = True,
 ) -> BuildReport:
     """The build itself, under the build lock (``build_catalog``).
 
@@ -154,9 +170,12 @@ def _build_catalog(
     todo = [a for a in range(1, max_area + 1) if a not in done]
     _sync_seeds(catalog, seed_list)
     stage = {"classify_algebra": 0.0, "classify_canonical": 0.0, "behaviour": 0.0, "write": 0.0}
-    tick = time.perf_counter()
-    name_behaviour(catalog)  # areas stored by an older zoo, or left unnamed by a stopped build
-    stage["behaviour"] += time.perf_counter() - tick
+    named: list[int] = []
+    if behaviour:
+        tick = time.perf_counter()
+        # Areas stored without behaviour (an older zoo, a first-use build, a stopped build).
+        named += name_behaviour(catalog, jobs)
+        stage["behaviour"] += time.perf_counter() - tick
     totals = {"parameter_sets": 0, "readings": 0, "classes": 0, "frames": 0, "forms": 0}
     added: list[int] = []
     elsewhere: list[int] = []
@@ -165,7 +184,12 @@ def _build_catalog(
     seeds_by_area: dict[int, list[Seed]] = {}
     for seed in seed_list:
         seeds_by_area.setdefault(seed.params.area, []).append(seed)
-    classified = _cluster_classified(todo, cluster) if cluster else _iter_classified(todo, jobs)
+    limit = None if behaviour else 0  # classify_area's behaviour_limit: default, or none
+    classified = (
+        _cluster_classified(todo, cluster, limit)
+        if cluster
+        else _iter_classified(todo, jobs, limit)
+    )
     for result in classified:
         write_started = time.perf_counter()
         wrote = write_area(catalog, result, seeds_by_area.get(result.area, []))
@@ -174,9 +198,10 @@ def _build_catalog(
         stage["classify_canonical"] += result.seconds.get("canonical", 0.0)
         stage["behaviour"] += result.seconds.get("behaviour", 0.0)
         stage["write"] += write_seconds
-        tick = time.perf_counter()
-        name_behaviour(catalog)  # this area's classes, once every area below is stored
-        stage["behaviour"] += time.perf_counter() - tick
+        if behaviour:
+            tick = time.perf_counter()
+            named += name_behaviour(catalog)  # once every area below is stored
+            stage["behaviour"] += time.perf_counter() - tick
         if not wrote:
             elsewhere.append(result.area)  # a concurrent build stored it first
             continue
@@ -207,6 +232,7 @@ def _build_catalog(
         wall_seconds=time.perf_counter() - started,
         stage_seconds=stage,
         stored_elsewhere=tuple(elsewhere),
+        behaviour_named=tuple(named),
         jobs=jobs,
         seeds=len(seed_list),
     )
@@ -346,7 +372,11 @@ def ensure_catalog(
     else:
         catalog = Catalog.open(location, create=True)
     try:
-        report = build_catalog(catalog, bound, jobs=jobs or default_jobs(), progress=progress)
+        # The first answer does not wait for the behaviour classes (three times the
+        # classification's cost, docs/scale.md): ``zoo build`` names them later.
+        report = build_catalog(
+            catalog, bound, jobs=jobs or default_jobs(), progress=progress, behaviour=False
+        )
     except BaseException:
         catalog.close()
         raise
@@ -371,17 +401,25 @@ def default_jobs() -> int:
     return max(1, min(4, cores))
 
 
-def _iter_classified(areas: Sequence[int], jobs: int) -> Iterator[AreaClassification]:
-    """Classify areas in order, in ``jobs`` worker processes when that helps.
+def _iter_classified(
+    areas: Sequence[int], jobs: int, behaviour_limit: int | None = None
+) -> Iterator[AreaClassification]:
+    """Classify areas in order, in ``jobs`` worker processes when that helps
+    (``classify_area`` with its ``behaviour_limit``)."""
+    yield from in_workers(partial(classify_area, behaviour_limit=behaviour_limit), areas, jobs)
+
+
+def in_workers(function: Callable[[T], R], items: Sequence[T], jobs: int) -> Iterator[R]:
+    """``function`` of each item, in order, in ``jobs`` worker processes when that helps.
 
     With workers, Ctrl-C is this process's alone: workers ignore SIGINT, and here SIGINT only
     sets a flag that is turned into ``KeyboardInterrupt`` between two results, never inside a
     garbage-collector callback or a database write (which would print "Exception ignored"
     tracebacks). Workers end quietly when this process dies (``_pool_worker_start``).
     """
-    if jobs <= 1 or len(areas) <= 1:
-        for area in areas:
-            yield classify_area(area)
+    if jobs <= 1 or len(items) <= 1:
+        for item in items:
+            yield function(item)
         return
     methods = multiprocessing.get_all_start_methods()
     context = multiprocessing.get_context("fork" if "fork" in methods else "spawn")
@@ -399,13 +437,12 @@ def _iter_classified(areas: Sequence[int], jobs: int) -> Iterator[AreaClassifica
             raise KeyboardInterrupt
 
     try:
-        # Largest areas cost most: keep the pool busy with them while small ones stream through.
         pool = context.Pool(
-            processes=min(jobs, len(areas)), initializer=_pool_worker_start, initargs=(os.getpid(),)
+            processes=min(jobs, len(items)), initializer=_pool_worker_start, initargs=(os.getpid(),)
         )
         try:
-            results = pool.imap(classify_area, areas, chunksize=1)
-            for _ in areas:
+            results = pool.imap(function, items, chunksize=1)
+            for _ in items:
                 while True:
                     check()
                     try:
@@ -456,9 +493,11 @@ def _pool_worker_start(parent: int) -> None:
 _PR_SET_PDEATHSIG = 1
 
 
-def _cluster_classified(areas: Sequence[int], address: str) -> Iterator[AreaClassification]:
+def _cluster_classified(
+    areas: Sequence[int], address: str, behaviour_limit: int | None = None
+) -> Iterator[AreaClassification]:
     """Classify areas in order on a Dask cluster (``zoo.catalog.cluster``); this process writes."""
     if not areas:
         return
     with ClusterClassifier(address) as cluster:
-        yield from cluster.classify(areas)
+        yield from cluster.classify(areas, behaviour_limit)

@@ -116,8 +116,11 @@ class ClusterClassifier:
             return 0
         return len(self.client.scheduler_info(n_workers=-1).get("workers", {}))
 
-    def classify(self, areas: Sequence[int]) -> Iterator[AreaClassification]:
+    def classify(
+        self, areas: Sequence[int], behaviour_limit: int | None = None
+    ) -> Iterator[AreaClassification]:
         """Classify ``areas`` on the cluster; yield the results in the order of ``areas``.
+        ``behaviour_limit`` is ``classify_area``'s (None: the default state bound, 0: none).
 
         Every area is submitted at once, before this returns, largest first (the longest tasks
         start first while small ones fill the gaps); results are yielded, and released, in the
@@ -128,7 +131,11 @@ class ClusterClassifier:
         build = uuid.uuid4().hex[:12]  # keys unique to this build on a shared scheduler
         futures = {
             area: self.client.submit(
-                classify_area, area, key=f"zoo-classify-{build}-area-{area}", priority=area
+                classify_area,
+                area,
+                behaviour_limit=behaviour_limit,
+                key=f"zoo-classify-{build}-area-{area}",
+                priority=area,
             )
             for area in sorted(areas, reverse=True)
         }

@@ -453,7 +453,7 @@ class Catalog:
         ``columns`` names fields whose values come back as display text in
         ``FindResult.columns`` and typed in ``FindResult.values``.
         """
-        from zoo.query.parser import parse_query, referenced_area_bound, referenced_fields
+        from zoo.query.parser import parse_query, referenced_area_bound
 
         if limit is not None and limit < 0:
             raise ParameterError(f"--limit must be zero or more, got {limit}")
@@ -468,11 +468,7 @@ class Catalog:
             entries = reader.entries(ids)
             matched = reader.matched_readings(ids, node)
             complete_to = _complete_prefix(reader.complete_areas())
-            behaviour = None
-            if node is not None and "behaviour_count" in {f.name for f in referenced_fields(node)}:
-                bound = reader.info().get(BEHAVIOUR_BOUND_KEY)
-                named_to = _complete_prefix(reader.behaviour_done_areas())
-                behaviour = (int(bound) if bound else None, named_to)
+            behaviour = _behaviour_reach(reader, node)
         return FindResult(
             behaviour=behaviour,
             building=build_in_progress(self.engine),
@@ -491,15 +487,19 @@ class Catalog:
         """The completeness sentence of ``FindResult`` for a query, without running it."""
         from zoo.query.parser import parse_query, referenced_area_bound
 
-        bound = referenced_area_bound(parse_query(query)) if query.strip() else None
+        node = parse_query(query) if query.strip() else None
+        with self.repository.read() as reader:
+            complete_to = _complete_prefix(reader.complete_areas())
+            behaviour = _behaviour_reach(reader, node)
         result = FindResult(
             query,
             (),
             0,
-            self.complete_to(),
-            bound,
+            complete_to,
+            None if node is None else referenced_area_bound(node),
             location=self.url,
             building=build_in_progress(self.engine),
+            behaviour=behaviour,
         )
         return result.completeness_note()
 
@@ -604,6 +604,17 @@ def lookup_class_id(p: ParameterSet, location: str | None = None) -> str | None:
             return reader.class_id_for(p)
     finally:
         engine.dispose()
+
+
+def _behaviour_reach(reader: Any, node: Any) -> tuple[int | None, int] | None:
+    """For a query that reads ``behaviour_count``: (the catalog's state bound, the area up to
+    which behaviour classes are named), read in the answer's snapshot; else None."""
+    from zoo.query.parser import referenced_fields
+
+    if node is None or "behaviour_count" not in {f.name for f in referenced_fields(node)}:
+        return None
+    bound = reader.info().get(BEHAVIOUR_BOUND_KEY)
+    return (int(bound) if bound else None, _complete_prefix(reader.behaviour_done_areas()))
 
 
 def _complete_prefix(areas: Iterable[int]) -> int:

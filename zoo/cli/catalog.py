@@ -165,6 +165,14 @@ class ProgressBar:
 
 def _build_summary(report: BuildReport) -> str:
     if not report.added:
+        if report.behaviour_named:
+            from zoo.catalog.build import area_span
+
+            return (
+                f"Named the behaviour classes of {area_span(report.behaviour_named)} in "
+                f"{report.wall_seconds:.1f} s. The catalog is complete up to area "
+                f"{report.complete_to}."
+            )
         return f"Nothing to do: the catalog is already complete up to area {report.complete_to}."
     from zoo.catalog.build import area_span
 
@@ -352,7 +360,7 @@ def find(
             typer.echo(
                 f"No catalog at {shown} yet: building areas "
                 f"1..{catalog_service.DEFAULT_MAX_AREA} "
-                "once (later queries answer at once).",
+                "once (later queries answer at once; `zoo build` adds the behaviour classes).",
                 err=True,
             )
         holder: dict[str, Catalog] = {}
