@@ -11,9 +11,9 @@ Computation 60 (2014), the nauty that pynauty ships, one run per form: ``zoo.cor
 as an *undirected* coloured graph, because nauty's directed mode is pathologically slow on
 these nets (docs/architecture.md): a vertex per transition, and each place split into a tail
 vertex (adjacent to its input transition) and a head vertex (adjacent to its output transition)
-joined by an edge. The text is read off nauty's canonical
-labelling and never contains nauty's raw certificate, whose bytes depend on the machine word
-size. docs/canonical-encoding.md is the normative description; ``ENCODING_VERSION`` names it.
+joined by an edge. The text is read off nauty's canonical labelling and never contains nauty's
+raw certificate, whose bytes depend on the machine word size. docs/canonical-encoding.md is
+the normative description; ``ENCODING_VERSION`` names it.
 """
 
 from __future__ import annotations
