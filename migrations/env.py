@@ -14,9 +14,9 @@ from __future__ import annotations
 from alembic import context
 from sqlalchemy import Connection, inspect, text
 
-from zoo.version import __version__
 from zoo.storage.database import open_engine, resolve_location
 from zoo.storage.models import Base
+from zoo.version import __version__
 
 config = context.config
 target_metadata = Base.metadata
