@@ -81,8 +81,8 @@ def _keys_of(
     classes: list[tuple[str, str, str]], jobs: int
 ) -> dict[str, tuple[str | None, str | None]]:
     """The behaviour keys of (id, label, fingerprint) classes within the state bound, computed
-    in ``jobs`` worker processes (``zoo.catalog.build.in_workers``)."""
-    from zoo.catalog.build import in_workers
+    in ``jobs`` worker processes (``zoo.catalog.workers.in_workers``)."""
+    from zoo.catalog.workers import in_workers
     from zoo.core.behaviour import BEHAVIOUR_STATE_LIMIT
     from zoo.core.invariants import reachable_state_count
 

@@ -14,16 +14,12 @@ change (docs/citing.md). Reading the catalog is ``zoo.catalog.service``'s concer
 
 from __future__ import annotations
 
-import multiprocessing
 import os
-import signal
-import sys
-import threading
 import time
-from collections.abc import Callable, Iterator, Sequence
+from collections.abc import Iterator, Sequence
 from dataclasses import dataclass, field
 from functools import partial
-from typing import Protocol, TypeVar
+from typing import Protocol
 
 from zoo.catalog import service as catalog_service
 from zoo.catalog.behaviour import name_behaviour
@@ -32,6 +28,7 @@ from zoo.catalog.cluster import ClusterClassifier, check_cluster_address
 from zoo.catalog.enumeration import parameter_set_count
 from zoo.catalog.seeds import Seed, load_seed_directory
 from zoo.catalog.service import MAX_BUILD_AREA, AreaStats, Catalog
+from zoo.catalog.workers import in_workers
 from zoo.errors import CatalogError, ParameterError
 from zoo.storage import database
 from zoo.storage.buildlock import build_in_progress, build_lock
@@ -53,10 +50,6 @@ __all__ = [
     "ensure_catalog",
     "write_area",
 ]
-
-
-T = TypeVar("T")
-R = TypeVar("R")
 
 
 @dataclass(frozen=True)
@@ -407,90 +400,6 @@ def _iter_classified(
     """Classify areas in order, in ``jobs`` worker processes when that helps
     (``classify_area`` with its ``behaviour_limit``)."""
     yield from in_workers(partial(classify_area, behaviour_limit=behaviour_limit), areas, jobs)
-
-
-def in_workers(function: Callable[[T], R], items: Sequence[T], jobs: int) -> Iterator[R]:
-    """``function`` of each item, in order, in ``jobs`` worker processes when that helps.
-
-    With workers, Ctrl-C is this process's alone: workers ignore SIGINT, and here SIGINT only
-    sets a flag that is turned into ``KeyboardInterrupt`` between two results, never inside a
-    garbage-collector callback or a database write (which would print "Exception ignored"
-    tracebacks). Workers end quietly when this process dies (``_pool_worker_start``).
-    """
-    if jobs <= 1 or len(items) <= 1:
-        for item in items:
-            yield function(item)
-        return
-    methods = multiprocessing.get_all_start_methods()
-    context = multiprocessing.get_context("fork" if "fork" in methods else "spawn")
-    interrupted: list[int] = []
-    own_handler = threading.current_thread() is threading.main_thread()
-    previous = (
-        # Installed before the fork, so a worker hit before its initializer runs stays quiet.
-        signal.signal(signal.SIGINT, lambda number, _frame: interrupted.append(number))
-        if own_handler
-        else None
-    )
-
-    def check() -> None:
-        if interrupted:
-            raise KeyboardInterrupt
-
-    try:
-        pool = context.Pool(
-            processes=min(jobs, len(items)), initializer=_pool_worker_start, initargs=(os.getpid(),)
-        )
-        try:
-            results = pool.imap(function, items, chunksize=1)
-            for _ in items:
-                while True:
-                    check()
-                    try:
-                        result = results.next(timeout=_INTERRUPT_POLL_SECONDS)
-                        break
-                    except multiprocessing.TimeoutError:
-                        continue
-                yield result
-            check()
-            pool.close()
-        finally:
-            pool.terminate()
-            pool.join()
-    finally:
-        if own_handler:
-            signal.signal(signal.SIGINT, previous)
-
-
-#: How often the builder looks for a Ctrl-C while it waits for a worker's result.
-_INTERRUPT_POLL_SECONDS = 0.2
-
-
-def _pool_worker_start(parent: int) -> None:
-    """Initializer of a build worker: no tracebacks on Ctrl-C or when the builder dies.
-
-    Ctrl-C reaches every process of the terminal's group; the builder handles it and stops the
-    pool. A worker whose builder was killed would otherwise finish its area and then print a
-    BrokenPipeError traceback when it sends the result: on Linux it is told of the death
-    (PR_SET_PDEATHSIG) and ends at once; elsewhere the default SIGPIPE action ends it silently
-    at the send.
-    """
-    signal.signal(signal.SIGINT, signal.SIG_IGN)
-    if hasattr(signal, "SIGPIPE"):
-        signal.signal(signal.SIGPIPE, signal.SIG_DFL)
-    if sys.platform.startswith("linux"):
-        try:
-            import ctypes
-
-            libc = ctypes.CDLL(None, use_errno=True)
-            libc.prctl(_PR_SET_PDEATHSIG, signal.SIGTERM)
-        except (OSError, AttributeError):  # pragma: no cover - no usable libc
-            pass
-    if os.getppid() != parent:  # the builder died before the request above took effect
-        os._exit(0)
-
-
-#: prctl option of Linux: the signal a process receives when its parent dies.
-_PR_SET_PDEATHSIG = 1
 
 
 def _cluster_classified(
