@@ -241,7 +241,9 @@ def build(
     """Enumerate, classify and store every cycloid up to an area; resumes where it stopped.
 
     Each area is stored in one transaction, so an interrupted build keeps every area it
-    finished.
+    finished. The build also decides which classes behave alike (reachability graphs with at
+    most 10,000 states) and names their behaviour classes, also for areas that the first
+    `zoo find` stored without them.
 
     Example: zoo build --max-area 60 --jobs 2   (or --cluster local:2)
     """
