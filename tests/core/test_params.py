@@ -166,7 +166,7 @@ def test_area_limit_is_inclusive() -> None:
 
 
 def test_parameter_error_is_a_value_error() -> None:
-    # style.md: subclasses also inherit the builtin a caller would catch.
+    # Common practice: subclasses also inherit the builtin a caller would catch.
     with pytest.raises(ValueError):
         parse_params("1,2,3")
 

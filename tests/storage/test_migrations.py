@@ -5,7 +5,8 @@
   tests/data/make_catalog_r0001.py) to head, with every row surviving;
 * older and newer catalogs opened by this code: the errors name the fix;
 * downgrade and upgrade round trips, no-op upgrades, refusal of foreign databases;
-* the conventions of style.md: named constraints from the first revision, batch mode on SQLite.
+* the conventions of docs/migrations.md: named constraints from the first revision, batch mode
+  on SQLite.
 """
 
 from __future__ import annotations
@@ -156,7 +157,7 @@ def test_two_zoos_upgrading_at_once_do_not_collide(db_url: str) -> None:
 
 
 def test_every_constraint_is_named_by_the_convention(migrated_db_url: str) -> None:
-    """style.md: constraint names from the first revision on (SQLite leaves them unnamed)."""
+    """Every constraint named from the first revision on (docs/migrations.md)."""
     engine = open_engine(migrated_db_url)
     inspector = inspect(engine)
     for table in (*CORE_TABLES, "seeds"):
@@ -175,7 +176,7 @@ def test_every_constraint_is_named_by_the_convention(migrated_db_url: str) -> No
 
 
 def test_env_py_renders_sqlite_changes_in_batch_mode(tmp_path: Path) -> None:
-    """Autogenerate through env.py writes batch_alter_table blocks (style.md, SQLite)."""
+    """Autogenerate through env.py writes batch_alter_table blocks (docs/migrations.md, SQLite)."""
     url = resolve_location(str(tmp_path / "c.sqlite3"))
     upgrade(url)
     engine = open_engine(url)

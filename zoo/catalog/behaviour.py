@@ -32,7 +32,7 @@ def name_behaviour(catalog: Catalog, jobs: int = 1) -> list[int]:
 
     complete_to = catalog.complete_to()
     with catalog.repository.read() as reader:
-        pending = [a for a in reader.behaviour_pending_areas() if a <= complete_to]
+        pending = [a for a in reader.behaviour_areas(named=False) if a <= complete_to]
         bound = reader.info().get(STATE_BOUND_KEY)
         unkeyed = [
             (row.id, row.label, row.fingerprint)

@@ -115,6 +115,13 @@ def build_catalog(
 ) -> BuildReport:
     """Store every area 1..max_area that is not stored yet; one transaction per area.
 
+    ``jobs`` worker processes classify areas (nauty included); this process writes them in
+    increasing order. Areas already complete are never rewritten. ``seeds`` defaults to the
+    shipped seeds_data/; each is attached to its class when its area is stored. Raises
+    ``CatalogError`` (nothing stored for the failing area) when the classification and
+    nauty disagree. ``cluster`` (a Dask scheduler address or ``local:N``) classifies on a
+    Dask cluster instead of ``jobs`` local processes (``zoo.catalog.cluster``).
+
     With ``behaviour`` (the default) the build also decides the behaviour of every class with
     at most ``BEHAVIOUR_STATE_LIMIT`` states and names the behaviour classes
     (``zoo.catalog.behaviour``), including those of areas stored earlier without it; without,
@@ -122,31 +129,6 @@ def build_catalog(
 
     Holds the catalog's build lock while it runs (``zoo.storage.buildlock``), so that readers
     know a build is in progress and answer from what is complete instead of building too.
-    """
-    with build_lock(catalog.engine):
-        return _build_catalog(
-            catalog, max_area, jobs, progress, seeds=seeds, cluster=cluster, behaviour=behaviour
-        )
-
-
-def _build_catalog(
-    catalog: Catalog,
-    max_area: int,
-    jobs: int = 1,
-    progress: BuildProgress | None = None,
-    *,
-    seeds: Sequence[Seed] | None = None,
-    cluster: str | None = None,
-    behaviour: bool = True,
-) -> BuildReport:
-    """The build itself, under the build lock (``build_catalog``).
-
-    ``jobs`` worker processes classify areas (nauty included); this process writes them in
-    increasing order. Areas already complete are never rewritten. ``seeds`` defaults to the
-    shipped seeds_data/; each is attached to its class when its area is stored. Raises
-    ``CatalogError`` (nothing stored for the failing area) when the classification and
-    nauty disagree. ``cluster`` (a Dask scheduler address or ``local:N``) classifies on a
-    Dask cluster instead of ``jobs`` local processes (``zoo.catalog.cluster``).
     """
     started = time.perf_counter()
     try:
@@ -156,82 +138,83 @@ def _build_catalog(
     except ParameterError:
         catalog.discard_if_unused()  # a rejected build leaves no empty catalog file behind
         raise
-    jobs = max(1, int(jobs))
-    seed_list = list(load_seed_directory() if seeds is None else seeds)
-    _record_encoding(catalog, max_area)
-    done = set(catalog.complete_areas())
-    todo = [a for a in range(1, max_area + 1) if a not in done]
-    _sync_seeds(catalog, seed_list)
-    stage = {"classify_algebra": 0.0, "classify_canonical": 0.0, "behaviour": 0.0, "write": 0.0}
-    named: list[int] = []
-    if behaviour:
-        tick = time.perf_counter()
-        # Areas stored without behaviour (an older zoo, a first-use build, a stopped build).
-        named += name_behaviour(catalog, jobs)
-        stage["behaviour"] += time.perf_counter() - tick
-    totals = {"parameter_sets": 0, "readings": 0, "classes": 0, "frames": 0, "forms": 0}
-    added: list[int] = []
-    elsewhere: list[int] = []
-    if progress is not None:
-        progress.started(todo, sum(parameter_set_count(a) for a in todo))
-    seeds_by_area: dict[int, list[Seed]] = {}
-    for seed in seed_list:
-        seeds_by_area.setdefault(seed.params.area, []).append(seed)
-    limit = None if behaviour else 0  # classify_area's behaviour_limit: default, or none
-    classified = (
-        _cluster_classified(todo, cluster, limit)
-        if cluster
-        else _iter_classified(todo, jobs, limit)
-    )
-    for result in classified:
-        write_started = time.perf_counter()
-        wrote = write_area(catalog, result, seeds_by_area.get(result.area, []))
-        write_seconds = time.perf_counter() - write_started
-        stage["classify_algebra"] += result.seconds.get("algebra", 0.0)
-        stage["classify_canonical"] += result.seconds.get("canonical", 0.0)
-        stage["behaviour"] += result.seconds.get("behaviour", 0.0)
-        stage["write"] += write_seconds
+    with build_lock(catalog.engine):
+        jobs = max(1, int(jobs))
+        seed_list = list(load_seed_directory() if seeds is None else seeds)
+        _record_encoding(catalog, max_area)
+        done = set(catalog.complete_areas())
+        todo = [a for a in range(1, max_area + 1) if a not in done]
+        _sync_seeds(catalog, seed_list)
+        stage = {"classify_algebra": 0.0, "classify_canonical": 0.0, "behaviour": 0.0, "write": 0.0}
+        named: list[int] = []
         if behaviour:
             tick = time.perf_counter()
-            named += name_behaviour(catalog)  # once every area below is stored
+            # Areas stored without behaviour (an older zoo, a first-use build, a stopped build).
+            named += name_behaviour(catalog, jobs)
             stage["behaviour"] += time.perf_counter() - tick
-        if not wrote:
-            elsewhere.append(result.area)  # a concurrent build stored it first
-            continue
-        added.append(result.area)
-        totals["parameter_sets"] += result.parameter_set_count
-        totals["readings"] += result.reading_count
-        totals["classes"] += len(result.classes)
-        totals["frames"] += len(result.frames)
-        totals["forms"] += result.canonical_forms
+        totals = {"parameter_sets": 0, "readings": 0, "classes": 0, "frames": 0, "forms": 0}
+        added: list[int] = []
+        elsewhere: list[int] = []
         if progress is not None:
-            progress.area_done(
-                AreaStats(
-                    result.area,
-                    result.parameter_set_count,
-                    result.reading_count,
-                    len(result.classes),
-                    len(result.frames),
+            progress.started(todo, sum(parameter_set_count(a) for a in todo))
+        seeds_by_area: dict[int, list[Seed]] = {}
+        for seed in seed_list:
+            seeds_by_area.setdefault(seed.params.area, []).append(seed)
+        limit = None if behaviour else 0  # classify_area's behaviour_limit: default, or none
+        classified = (
+            _cluster_classified(todo, cluster, limit)
+            if cluster
+            else _iter_classified(todo, jobs, limit)
+        )
+        for result in classified:
+            write_started = time.perf_counter()
+            wrote = write_area(catalog, result, seeds_by_area.get(result.area, []))
+            write_seconds = time.perf_counter() - write_started
+            stage["classify_algebra"] += result.seconds.get("algebra", 0.0)
+            stage["classify_canonical"] += result.seconds.get("canonical", 0.0)
+            stage["behaviour"] += result.seconds.get("behaviour", 0.0)
+            stage["write"] += write_seconds
+            if behaviour:
+                tick = time.perf_counter()
+                named += name_behaviour(catalog)  # once every area below is stored
+                stage["behaviour"] += time.perf_counter() - tick
+            if not wrote:
+                elsewhere.append(result.area)  # a concurrent build stored it first
+                continue
+            added.append(result.area)
+            totals["parameter_sets"] += result.parameter_set_count
+            totals["readings"] += result.reading_count
+            totals["classes"] += len(result.classes)
+            totals["frames"] += len(result.frames)
+            totals["forms"] += result.canonical_forms
+            if progress is not None:
+                progress.area_done(
+                    AreaStats(
+                        result.area,
+                        result.parameter_set_count,
+                        result.reading_count,
+                        len(result.classes),
+                        len(result.frames),
+                    )
                 )
-            )
-    report = BuildReport(
-        added=tuple(added),
-        complete_to=catalog.complete_to(),
-        parameter_sets=totals["parameter_sets"],
-        readings=totals["readings"],
-        classes=totals["classes"],
-        frames=totals["frames"],
-        canonical_forms=totals["forms"],
-        wall_seconds=time.perf_counter() - started,
-        stage_seconds=stage,
-        stored_elsewhere=tuple(elsewhere),
-        behaviour_named=tuple(named),
-        jobs=jobs,
-        seeds=len(seed_list),
-    )
-    if progress is not None:
-        progress.finished(report)
-    return report
+        report = BuildReport(
+            added=tuple(added),
+            complete_to=catalog.complete_to(),
+            parameter_sets=totals["parameter_sets"],
+            readings=totals["readings"],
+            classes=totals["classes"],
+            frames=totals["frames"],
+            canonical_forms=totals["forms"],
+            wall_seconds=time.perf_counter() - started,
+            stage_seconds=stage,
+            stored_elsewhere=tuple(elsewhere),
+            behaviour_named=tuple(named),
+            jobs=jobs,
+            seeds=len(seed_list),
+        )
+        if progress is not None:
+            progress.finished(report)
+        return report
 
 
 def check_build_bound(max_area: object) -> int:

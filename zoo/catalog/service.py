@@ -331,7 +331,7 @@ class Catalog:
         """The largest N such that the classes of areas 1..N all have their behaviour
         identifiers: a behaviour class of s states is listed completely when N >= s."""
         with self.repository.read() as reader:
-            return _complete_prefix(reader.behaviour_done_areas())
+            return _complete_prefix(reader.behaviour_areas(named=True))
 
     def behaviour_members(self, behaviour_id: str) -> list[str]:
         """The stored classes of a behaviour class (``BE...``), in catalog order."""
@@ -614,7 +614,7 @@ def _behaviour_reach(reader: Any, node: Any) -> tuple[int | None, int] | None:
     if node is None or "behaviour_count" not in {f.name for f in referenced_fields(node)}:
         return None
     bound = reader.info().get(BEHAVIOUR_BOUND_KEY)
-    return (int(bound) if bound else None, _complete_prefix(reader.behaviour_done_areas()))
+    return (int(bound) if bound else None, _complete_prefix(reader.behaviour_areas(named=True)))
 
 
 def _complete_prefix(areas: Iterable[int]) -> int:

@@ -459,13 +459,14 @@ def compare_behaviour(
 class BehaviourKey:
     """What the catalog stores to group classes by behaviour (``behaviour_key``).
 
-    Two classes behave alike exactly when their keys are equal: ``cycle:s`` for a state graph
-    that is one directed cycle of s markings, ``net:FINGERPRINT`` (nauty, encoding v1) for the
-    net synthesized from the state graph. ``evidence`` says how the key was found.
+    ``cycle:s`` for a state graph that is one directed cycle of s markings,
+    ``net:FINGERPRINT`` (nauty, encoding v1) for the net synthesized from the state graph.
+    Classes with different keys behave differently; the build joins classes with equal keys
+    (after an explicit state map, unless both are cycles). ``evidence`` says how the key was
+    found.
     """
 
     key: str
-    states: int
     evidence: str
 
 
@@ -483,11 +484,10 @@ def behaviour_key(
 
     A state graph that is one cycle (min(α, β) = 1) gets ``cycle:s``. Otherwise the net
     synthesized from the state graph (``synthesized_net``) names the behaviour: isomorphic
-    state graphs give isomorphic synthesized nets, and the synthesized net's reachability graph
-    is the state graph again, so equal fingerprints mean equal behaviour (merges are still
-    checked with an explicit state map by the build). ``own_net_read_back`` decides the usual
-    case without nauty: the net read back is the class's own net, so its fingerprint is the
-    class's.
+    state graphs give isomorphic synthesized nets, so different keys mean different behaviour;
+    equal keys of two classes are confirmed by an explicit state map before the build joins
+    them (``zoo.catalog.behaviour``). ``own_net_read_back`` decides the usual case without
+    nauty: the net read back is the class's own net, so its fingerprint is the class's.
 
     >>> behaviour_key(ParameterSet(1, 2, 1, 3), "unused").key
     'cycle:5'
@@ -498,16 +498,16 @@ def behaviour_key(
     if states > limit:
         return None
     if min(p.alpha, p.beta) == 1:
-        return BehaviourKey(f"cycle:{states}", states, CYCLE_EVIDENCE)
+        return BehaviourKey(f"cycle:{states}", CYCLE_EVIDENCE)
     net = build_net(p)
     if own_net_read_back(net, firing_arcs(net, limit)[1]):
-        return BehaviourKey(f"net:{class_fingerprint}", states, OWN_NET_EVIDENCE)
+        return BehaviourKey(f"net:{class_fingerprint}", OWN_NET_EVIDENCE)
     graph = state_graph_of(net, limit)
     synthesized = synthesized_net(graph)
     if synthesized is None:
         return None
     fingerprint = canonical_form(synthesized.net).fingerprint
-    return BehaviourKey(f"net:{fingerprint}", states, SYNTHESIZED_EVIDENCE)
+    return BehaviourKey(f"net:{fingerprint}", SYNTHESIZED_EVIDENCE)
 
 
 def firing_arcs(net: MarkedGraph, limit: int = BEHAVIOUR_STATE_LIMIT) -> tuple[list[int], Any]:

@@ -354,20 +354,12 @@ class CatalogReader:
         )
         return [row[0] for row in rows]
 
-    def behaviour_done_areas(self) -> list[int]:
-        """Complete areas whose classes have their behaviour identifiers, in order."""
+    def behaviour_areas(self, *, named: bool) -> list[int]:
+        """Complete areas whose classes have (``named``) or lack their behaviour identifiers,
+        in order."""
         rows = self.connection.execute(
             select(_AREAS.c.area)
-            .where(_AREAS.c.complete.is_(True), _AREAS.c.behaviour_done.is_(True))
-            .order_by(_AREAS.c.area)
-        )
-        return [row[0] for row in rows]
-
-    def behaviour_pending_areas(self) -> list[int]:
-        """Complete areas whose classes have no behaviour identifiers yet, in order."""
-        rows = self.connection.execute(
-            select(_AREAS.c.area)
-            .where(_AREAS.c.complete.is_(True), _AREAS.c.behaviour_done.is_(False))
+            .where(_AREAS.c.complete.is_(True), _AREAS.c.behaviour_done.is_(named))
             .order_by(_AREAS.c.area)
         )
         return [row[0] for row in rows]
