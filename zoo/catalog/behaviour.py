@@ -17,8 +17,7 @@ catalog is named up to area s (``Catalog.behaviour_complete_to``).
 from __future__ import annotations
 
 from zoo.catalog.identifiers import behaviour_identifier
-from zoo.catalog.service import BEHAVIOUR_BOUND_KEY as STATE_BOUND_KEY
-from zoo.catalog.service import Catalog
+from zoo.catalog.service import BEHAVIOUR_BOUND_KEY, Catalog
 from zoo.core.params import parse_params
 from zoo.errors import CatalogError
 
@@ -33,7 +32,7 @@ def name_behaviour(catalog: Catalog, jobs: int = 1) -> list[int]:
     complete_to = catalog.complete_to()
     with catalog.repository.read() as reader:
         pending = [a for a in reader.behaviour_areas(named=False) if a <= complete_to]
-        bound = reader.info().get(STATE_BOUND_KEY)
+        bound = reader.info().get(BEHAVIOUR_BOUND_KEY)
         unkeyed = [
             (row.id, row.label, row.fingerprint)
             for area in pending
@@ -55,7 +54,7 @@ def name_behaviour(catalog: Catalog, jobs: int = 1) -> list[int]:
             if not writer.claim_behaviour_area(area):
                 continue  # a concurrent build named it
             if bound is None:
-                writer.put_info(STATE_BOUND_KEY, str(BEHAVIOUR_STATE_LIMIT))
+                writer.put_info(BEHAVIOUR_BOUND_KEY, str(BEHAVIOUR_STATE_LIMIT))
                 bound = str(BEHAVIOUR_STATE_LIMIT)
             touched: list[str] = []
             for row in writer.behaviour_rows(area):
@@ -122,4 +121,4 @@ def _join_evidence(
     return f"explicit map of the state graph onto that of {first_id}, checked arc by arc"
 
 
-__all__ = ["STATE_BOUND_KEY", "name_behaviour"]
+__all__ = ["name_behaviour"]

@@ -9,7 +9,7 @@ from __future__ import annotations
 from typing import Any, cast
 
 from zoo.catalog.identifiers import read_identifier
-from zoo.catalog.service import Catalog
+from zoo.catalog.service import BEHAVIOUR_BOUND_KEY, Catalog
 from zoo.core import registry
 from zoo.core.iterations import class_iteration_bases, class_iterations
 from zoo.core.params import ParameterSet, parse_params
@@ -65,9 +65,7 @@ def behaviour_report(
     most s, so it is once the catalog is named up to area s). Without an identifier (above
     the catalog's state bound) ``classes`` is null and ``state_bound`` says the bound. Every
     class of a behaviour class has the entry's number of ``states``."""
-    from zoo.catalog.behaviour import STATE_BOUND_KEY
-
-    bound = catalog.info().get(STATE_BOUND_KEY)
+    bound = catalog.info().get(BEHAVIOUR_BOUND_KEY)
     report = {**stored, "state_bound": int(bound) if bound is not None else None}
     if behaviour_id is None:
         return {**report, "classes": None, "complete": None}
