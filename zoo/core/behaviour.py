@@ -570,8 +570,9 @@ def firing_arcs(net: MarkedGraph, limit: int = BEHAVIOUR_STATE_LIMIT) -> tuple[l
 def own_net_read_back(net: MarkedGraph, arcs: Any) -> bool:
     """True when ``synthesized_net`` of the unlabelled state graph gives back ``net`` itself,
     decided with the transition names that the arcs of its reachability graph carry
-    (``reachability_graph(net).arcs``: state 0 initial, every state numbered after the state
-    it was first reached from), in numpy, without nauty.
+    (``firing_arcs(net)[1]``, or ``reachability_graph(net).arcs``: state 0 initial, arcs
+    grouped by source state, every state numbered after the state it was first reached from),
+    in numpy, without nauty.
 
     Two steps of ``synthesized_net``, each computed from the known labels:
 
